@@ -1,1 +1,17 @@
+//! Lacuna: point-defect chemistry in Kröger–Vink notation.
+//!
+//! The pipeline, one module per stage: `notation` reads the text, `host`
+//! knows the sublattices, `check` tests the balances, `document` reads
+//! reaction files, `engine` runs checks over sources, `render` writes the
+//! results, and `cli` is the thin command-line layer over all of it.
+
+pub mod check;
+pub mod diagnostic;
 pub mod elements;
+pub mod host;
+pub mod notation;
+pub mod number;
+pub mod cli;
+pub mod document;
+pub mod engine;
+pub mod render;

@@ -1,0 +1,273 @@
+//! Writes notation back as text: ASCII (what a keyboard types), Unicode (what
+//! a reader expects) and LaTeX math (what a manuscript needs). The ASCII and
+//! Unicode forms parse back to the same species.
+
+use super::{Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term, VacancySpelling};
+use crate::elements;
+use crate::number::{self, Q};
+use std::fmt::Write;
+
+/// Which spelling of the notation to write.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Style {
+    /// `V_O..`, `Y_Zr'`, `O_Ox`, `->`
+    Ascii,
+    /// `V_O••`, `Y_Zr′`, `O_O×`, `→`
+    Unicode,
+    /// `V_{\mathrm{O}}^{\bullet\bullet}` (math mode)
+    Latex,
+}
+
+fn symbol(z: u8) -> &'static str {
+    elements::by_z(z).map_or("?", |e| e.symbol)
+}
+
+fn write_count(out: &mut String, n: Q, latex: bool) {
+    if n == Q::from_integer(1) {
+        return;
+    }
+    let text = decimal_text(n);
+    if latex {
+        let _ = write!(out, "_{{{text}}}");
+    } else {
+        out.push_str(&text);
+    }
+}
+
+/// An exact decimal when the fraction has one (`0.9`), else `a/b`.
+fn decimal_text(q: Q) -> String {
+    if q.is_integer() {
+        return q.numer().to_string();
+    }
+    let mut d = *q.denom();
+    let (mut twos, mut fives) = (0u32, 0u32);
+    while d % 2 == 0 {
+        d /= 2;
+        twos += 1;
+    }
+    while d % 5 == 0 {
+        d /= 5;
+        fives += 1;
+    }
+    let places = twos.max(fives);
+    if d != 1 || places > 18 {
+        return number::to_plain(q);
+    }
+    let Some(scale) = 10i64.checked_pow(places) else { return number::to_plain(q) };
+    let Some(scaled) = number::mul(q, Q::from_integer(scale)).ok().filter(|s| s.is_integer()) else {
+        return number::to_plain(q);
+    };
+    let digits = scaled.numer().abs().to_string();
+    let places = places as usize;
+    let padded = format!("{digits:0>width$}", width = places + 1);
+    let (whole, frac) = padded.split_at(padded.len() - places);
+    let sign = if *scaled.numer() < 0 { "-" } else { "" };
+    format!("{sign}{whole}.{}", frac.trim_end_matches('0'))
+}
+
+fn write_formula(out: &mut String, formula: &Formula, latex: bool) {
+    for (z, n) in &formula.atoms {
+        out.push_str(symbol(*z));
+        write_count(out, *n, latex);
+    }
+}
+
+fn write_charge(out: &mut String, charge: i32, style: Style) {
+    let count = charge.unsigned_abs() as usize;
+    match style {
+        Style::Ascii => match charge {
+            0 => out.push('x'),
+            c if c > 0 => out.push_str(&".".repeat(count)),
+            _ => out.push_str(&"'".repeat(count)),
+        },
+        Style::Unicode => match charge {
+            0 => out.push('×'),
+            c if c > 0 => out.push_str(&"•".repeat(count)),
+            _ => out.push_str(&"′".repeat(count)),
+        },
+        Style::Latex => {
+            let mark = match charge {
+                0 => "\\times",
+                c if c > 0 => "\\bullet",
+                _ => "\\prime",
+            };
+            let _ = write!(out, "^{{{}}}", mark.repeat(count.max(1)));
+        }
+    }
+}
+
+fn write_site(out: &mut String, site: &Site, style: Style) {
+    match (site, style) {
+        (Site::Interstitial, Style::Latex) => out.push_str("_{i}"),
+        (Site::Interstitial, _) => out.push_str("_i"),
+        (Site::Lattice { element, label }, Style::Latex) => {
+            let _ = write!(out, "_{{\\mathrm{{{}}}", symbol(*element));
+            if let Some(label) = label {
+                let _ = write!(out, "\\mathrm{{:{label}}}");
+            }
+            out.push('}');
+        }
+        (Site::Lattice { element, label: Some(label) }, _) => {
+            let _ = write!(out, "_{{{}:{label}}}", symbol(*element));
+        }
+        (Site::Lattice { element, label: None }, _) => {
+            let _ = write!(out, "_{}", symbol(*element));
+        }
+    }
+}
+
+fn write_species(out: &mut String, species: &Species, style: Style) {
+    match (&species.occupant, style) {
+        (Occupant::Electron, _) => out.push('e'),
+        (Occupant::Hole, _) => out.push('h'),
+        (Occupant::Vacancy(_), Style::Latex) => out.push('V'),
+        (Occupant::Vacancy(VacancySpelling::Word), _) => out.push_str("Vac"),
+        (Occupant::Vacancy(VacancySpelling::Box), _) => out.push('□'),
+        (Occupant::Vacancy(VacancySpelling::Bare), _) => out.push('V'),
+        (Occupant::Atoms { formula, .. }, Style::Latex) => {
+            out.push_str("\\mathrm{");
+            write_formula(out, formula, true);
+            out.push('}');
+        }
+        (Occupant::Atoms { formula, escaped }, _) => {
+            if *escaped {
+                out.push_str("el:");
+            }
+            write_formula(out, formula, false);
+        }
+    }
+    if let Some(site) = &species.site {
+        write_site(out, site, style);
+    }
+    write_charge(out, species.charge, style);
+}
+
+fn write_associate(out: &mut String, associate: &Associate, style: Style) {
+    out.push(if associate.braces { '{' } else { '(' });
+    if style == Style::Latex && associate.braces {
+        out.insert(out.len() - 1, '\\');
+    }
+    for (i, part) in associate.parts.iter().enumerate() {
+        if i > 0 {
+            out.push_str(if style == Style::Latex { "\\," } else { " " });
+        }
+        write_term_into(out, part, style);
+    }
+    if style == Style::Latex && associate.braces {
+        out.push_str("\\}");
+    } else {
+        out.push(if associate.braces { '}' } else { ')' });
+    }
+    if let Some(charge) = associate.charge {
+        write_charge(out, charge, style);
+    }
+}
+
+fn write_compound(out: &mut String, compound: &Compound, style: Style) {
+    let phase = match compound.phase {
+        Some(Phase::Gas) => "(g)",
+        Some(Phase::Solid) => "(s)",
+        Some(Phase::Liquid) => "(l)",
+        None => "",
+    };
+    if style == Style::Latex {
+        out.push_str("\\mathrm{");
+        write_formula(out, &compound.formula, true);
+        out.push_str(phase);
+        out.push('}');
+    } else {
+        write_formula(out, &compound.formula, false);
+        out.push_str(phase);
+    }
+}
+
+fn write_coefficient(out: &mut String, q: Q, style: Style) {
+    if q == Q::from_integer(1) {
+        return;
+    }
+    match style {
+        Style::Latex if !q.is_integer() => {
+            let _ = write!(out, "\\tfrac{{{}}}{{{}}}\\,", q.numer(), q.denom());
+        }
+        Style::Latex => {
+            let _ = write!(out, "{}\\,", q.numer());
+        }
+        Style::Unicode => {
+            out.push_str(&number::coefficient_text(q, true));
+            out.push(' ');
+        }
+        Style::Ascii => {
+            out.push_str(&number::to_plain(q));
+            out.push(' ');
+        }
+    }
+}
+
+fn write_term_into(out: &mut String, term: &Term, style: Style) {
+    write_coefficient(out, term.coefficient, style);
+    match &term.entity {
+        Entity::Species(s) => write_species(out, s, style),
+        Entity::Associate(a) => write_associate(out, a, style),
+        Entity::Compound(c) => write_compound(out, c, style),
+        Entity::Nil => out.push_str(match style {
+            Style::Ascii => "nil",
+            Style::Unicode => "∅",
+            Style::Latex => "\\varnothing",
+        }),
+    }
+}
+
+/// One species in the chosen style.
+pub fn render_species(species: &Species, style: Style) -> String {
+    let mut out = String::new();
+    write_species(&mut out, species, style);
+    out
+}
+
+/// One term (coefficient and entity) in the chosen style.
+pub fn render_term(term: &Term, style: Style) -> String {
+    let mut out = String::new();
+    write_term_into(&mut out, term, style);
+    out
+}
+
+/// A whole reaction in the chosen style.
+pub fn render_reaction(reaction: &Reaction, style: Style) -> String {
+    let mut out = String::new();
+    let join = " + ";
+    for (i, term) in reaction.left.iter().enumerate() {
+        if i > 0 {
+            out.push_str(join);
+        }
+        write_term_into(&mut out, term, style);
+    }
+    out.push_str(match (reaction.arrow, style) {
+        (super::Arrow::Forward, Style::Ascii) => " -> ",
+        (super::Arrow::Forward, Style::Unicode) => " → ",
+        (super::Arrow::Forward, Style::Latex) => " \\longrightarrow ",
+        (super::Arrow::Equilibrium, Style::Ascii) => " <=> ",
+        (super::Arrow::Equilibrium, Style::Unicode) => " ⇌ ",
+        (super::Arrow::Equilibrium, Style::Latex) => " \\rightleftharpoons ",
+        (super::Arrow::Equals, _) => " = ",
+    });
+    for (i, term) in reaction.right.iter().enumerate() {
+        if i > 0 {
+            out.push_str(join);
+        }
+        write_term_into(&mut out, term, style);
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn decimals_are_exact() {
+        assert_eq!(decimal_text(Q::new(9, 10)), "0.9");
+        assert_eq!(decimal_text(Q::new(1, 8)), "0.125");
+        assert_eq!(decimal_text(Q::new(1, 3)), "1/3");
+        assert_eq!(decimal_text(Q::new(29, 10)), "2.9");
+    }
+}
