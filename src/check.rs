@@ -7,7 +7,9 @@
 use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::elements;
 use crate::host::{Host, SiteLookup};
-use crate::notation::{Entity, Occupant, Reaction, Site, Span, Species, SpeciesKey, Style, Term, render_species};
+use crate::notation::{
+    Entity, Occupant, Reaction, Site, Span, Species, SpeciesKey, Style, Term, render_species,
+};
 use crate::number::{self, Q};
 
 /// Which balances hold. `site` is `None` when it could not be evaluated
@@ -43,7 +45,10 @@ impl Verdict {
         self.balance.mass
             && self.balance.charge
             && self.balance.site != Some(false)
-            && !self.diagnostics.iter().any(|d| d.severity == Severity::Error)
+            && !self
+                .diagnostics
+                .iter()
+                .any(|d| d.severity == Severity::Error)
     }
 }
 
@@ -51,26 +56,47 @@ const VANADIUM: u8 = 23;
 
 /// Checks one reaction against its host.
 pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
-    let mut checker = Checker { host, diags: Vec::new(), sites_known: host.is_some(), vanadium: false };
-    checker.vanadium = host.is_some_and(|h| h.contains_element(VANADIUM)) || mentions_vanadium(reaction);
+    let mut checker = Checker {
+        host,
+        diags: Vec::new(),
+        sites_known: host.is_some(),
+        vanadium: false,
+    };
+    checker.vanadium =
+        host.is_some_and(|h| h.contains_element(VANADIUM)) || mentions_vanadium(reaction);
     let mut table = BalanceTable::default();
     let mut overflow = false;
     for (right, term) in reaction.terms() {
         checker.validate_term(term);
-        if checker.accumulate(&mut table, term, Q::from_integer(1), right).is_err() {
+        if checker
+            .accumulate(&mut table, term, Q::from_integer(1), right)
+            .is_err()
+        {
             overflow = true;
         }
     }
     if overflow {
-        checker.diags.push(Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range"));
+        checker.diags.push(Diagnostic::new(
+            Code::Number,
+            reaction.span.clone(),
+            "the sums of this reaction grew beyond the exact range",
+        ));
     }
     let mass = table.elements.iter().all(|(_, l, r)| l == r);
     let charge = table.charge.0 == table.charge.1;
-    let site = if checker.sites_known { Some(site_ratio_holds(&table.sites)) } else { None };
+    let site = if checker.sites_known {
+        Some(site_ratio_holds(&table.sites))
+    } else {
+        None
+    };
     if host.is_none() {
         checker.diags.push(
-            Diagnostic::new(Code::NoHost, reaction.span.clone(), "no host declared, so sites and effective charges cannot be checked")
-                .with_help("add a `host ZrO2` line above the reaction, or pass `--host`"),
+            Diagnostic::new(
+                Code::NoHost,
+                reaction.span.clone(),
+                "no host declared, so sites and effective charges cannot be checked",
+            )
+            .with_help("add a `host ZrO2` line above the reaction, or pass `--host`"),
         );
     }
     if !mass {
@@ -83,7 +109,11 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
         checker.site_diagnostic(reaction, &table);
     }
     checker.same_on_both_sides(reaction);
-    Verdict { balance: Balance { mass, charge, site }, table, diagnostics: checker.diags }
+    Verdict {
+        balance: Balance { mass, charge, site },
+        table,
+        diagnostics: checker.diags,
+    }
 }
 
 fn mentions_vanadium(reaction: &Reaction) -> bool {
@@ -92,7 +122,13 @@ fn mentions_vanadium(reaction: &Reaction) -> bool {
             Entity::Compound(c) => c.formula.contains(VANADIUM),
             Entity::Species(s) => {
                 matches!(&s.occupant, Occupant::Atoms { formula, .. } if formula.contains(VANADIUM))
-                    || matches!(s.site, Some(Site::Lattice { element: VANADIUM, .. }))
+                    || matches!(
+                        s.site,
+                        Some(Site::Lattice {
+                            element: VANADIUM,
+                            ..
+                        })
+                    )
             }
             Entity::Associate(a) => a.parts.iter().any(term_has),
             Entity::Nil => false,
@@ -103,18 +139,28 @@ fn mentions_vanadium(reaction: &Reaction) -> bool {
 
 /// Net site changes must be proportional to the host's site counts.
 fn site_ratio_holds(sites: &[(String, Q, Q, Q)]) -> bool {
-    let Some((_, count0, l0, r0)) = sites.first() else { return true };
+    let Some((_, count0, l0, r0)) = sites.first() else {
+        return true;
+    };
     let lambda = (r0 - l0) / count0;
     sites.iter().all(|(_, count, l, r)| r - l == lambda * count)
 }
 
 fn signed_text(q: Q) -> String {
     let plain = number::to_plain(if q < Q::from_integer(0) { -q } else { q });
-    if q < Q::from_integer(0) { format!("−{plain}") } else { plain }
+    if q < Q::from_integer(0) {
+        format!("−{plain}")
+    } else {
+        plain
+    }
 }
 
 fn change_text(q: Q) -> String {
-    if q > Q::from_integer(0) { format!("+{}", number::to_plain(q)) } else { signed_text(q) }
+    if q > Q::from_integer(0) {
+        format!("+{}", number::to_plain(q))
+    } else {
+        signed_text(q)
+    }
 }
 
 fn symbol(z: u8) -> &'static str {
@@ -162,16 +208,32 @@ impl Checker<'_> {
         let shown = render_species(s, Style::Unicode);
         match &s.occupant {
             Occupant::Electron | Occupant::Hole => {
-                let (want, name, mark) = if s.occupant == Occupant::Electron { (-1, "an electron", "e′") } else { (1, "a hole", "h•") };
+                let (want, name, mark) = if s.occupant == Occupant::Electron {
+                    (-1, "an electron", "e′")
+                } else {
+                    (1, "a hole", "h•")
+                };
                 if s.charge != want {
                     self.push(
-                        Diagnostic::new(Code::ElectronicSpecies, s.span.clone(), format!("{name} has effective charge {}, not {}", signed_text(Q::from_integer(want.into())), signed_text(Q::from_integer(s.charge.into()))))
-                            .with_help(format!("write `{mark}`")),
+                        Diagnostic::new(
+                            Code::ElectronicSpecies,
+                            s.span.clone(),
+                            format!(
+                                "{name} has effective charge {}, not {}",
+                                signed_text(Q::from_integer(want.into())),
+                                signed_text(Q::from_integer(s.charge.into()))
+                            ),
+                        )
+                        .with_help(format!("write `{mark}`")),
                     );
                 } else if s.marks == crate::notation::MarkStyle::Unmarked {
                     self.push(
-                        Diagnostic::new(Code::ImplicitElectronic, s.span.clone(), format!("{name} written without its charge mark"))
-                            .with_help(format!("write `{mark}`")),
+                        Diagnostic::new(
+                            Code::ImplicitElectronic,
+                            s.span.clone(),
+                            format!("{name} written without its charge mark"),
+                        )
+                        .with_help(format!("write `{mark}`")),
                     );
                 }
                 return;
@@ -200,7 +262,9 @@ impl Checker<'_> {
             }
             Site::Lattice { element, label } => self.site_charge(s, *element, label.as_deref()),
         };
-        let Some(site_charge) = site_charge else { return };
+        let Some(site_charge) = site_charge else {
+            return;
+        };
         let effective = Q::from_integer(i64::from(s.charge));
         match &s.occupant {
             Occupant::Vacancy(_) => self.vacancy_range(s, site_charge, &shown),
@@ -220,21 +284,49 @@ impl Checker<'_> {
             SiteLookup::Found(i) => Some(host.sublattices[i].charge),
             SiteLookup::NeedsLabel => {
                 self.sites_known = false;
-                let names: Vec<String> = host.sublattices.iter().filter(|x| x.element == element).map(|x| format!("`{}`", x.name())).collect();
+                let names: Vec<String> = host
+                    .sublattices
+                    .iter()
+                    .filter(|x| x.element == element)
+                    .map(|x| format!("`{}`", x.name()))
+                    .collect();
                 self.push(
-                    Diagnostic::new(Code::UnknownSite, site_span, format!("{} has {} sublattices in {}; name one", symbol(element), names.len(), host.formula_text))
-                        .with_help(format!("write the site as {}", names.join(" or "))),
+                    Diagnostic::new(
+                        Code::UnknownSite,
+                        site_span,
+                        format!(
+                            "{} has {} sublattices in {}; name one",
+                            symbol(element),
+                            names.len(),
+                            host.formula_text
+                        ),
+                    )
+                    .with_help(format!("write the site as {}", names.join(" or "))),
                 );
                 None
             }
             SiteLookup::Missing => {
                 self.sites_known = false;
-                let written = label.map_or_else(|| symbol(element).to_string(), |l| format!("{}:{l}", symbol(element)));
-                let names: Vec<String> = host.sublattices.iter().map(|x| format!("`{}`", x.name())).collect();
+                let written = label.map_or_else(
+                    || symbol(element).to_string(),
+                    |l| format!("{}:{l}", symbol(element)),
+                );
+                let names: Vec<String> = host
+                    .sublattices
+                    .iter()
+                    .map(|x| format!("`{}`", x.name()))
+                    .collect();
                 self.push(
-                    Diagnostic::new(Code::UnknownSite, site_span, format!("{} has no {written} site", host.formula_text))
-                        .with_label("not a site of this host")
-                        .with_help(format!("its sites are {}, and `i` for an interstitial", names.join(", "))),
+                    Diagnostic::new(
+                        Code::UnknownSite,
+                        site_span,
+                        format!("{} has no {written} site", host.formula_text),
+                    )
+                    .with_label("not a site of this host")
+                    .with_help(format!(
+                        "its sites are {}, and `i` for an interstitial",
+                        names.join(", ")
+                    )),
                 );
                 None
             }
@@ -245,7 +337,11 @@ impl Checker<'_> {
         let q = Q::from_integer(i64::from(s.charge));
         let zero = Q::from_integer(0);
         let limit = -site_charge;
-        let inside = if limit >= zero { q >= zero && q <= limit } else { q <= zero && q >= limit };
+        let inside = if limit >= zero {
+            q >= zero && q <= limit
+        } else {
+            q <= zero && q >= limit
+        };
         if inside {
             return;
         }
@@ -253,7 +349,11 @@ impl Checker<'_> {
         let mut fixed = s.clone();
         fixed.charge = i32::try_from(*full.numer()).unwrap_or(0);
         let fixed_text = render_species(&fixed, Style::Unicode);
-        let zero_text = { let mut z = s.clone(); z.charge = 0; render_species(&z, Style::Unicode) };
+        let zero_text = {
+            let mut z = s.clone();
+            z.charge = 0;
+            render_species(&z, Style::Unicode)
+        };
         self.push(
             Diagnostic::new(Code::VacancyCharge, s.span.clone(), format!(
                 "{shown} has effective charge {}, but a vacancy on a site of formal charge {} ranges from 0 to {}",
@@ -265,40 +365,92 @@ impl Checker<'_> {
     }
 
     fn oxidation_state(&mut self, s: &Species, z: u8, real: Q, site_charge: Q, shown: &str) {
-        let Some(element) = elements::by_z(z) else { return };
+        let Some(element) = elements::by_z(z) else {
+            return;
+        };
         if !real.is_integer() || element.known_states.is_empty() {
             return;
         }
         let Ok(state) = i8::try_from(*real.numer()) else {
-            self.push(Diagnostic::new(Code::OxidationState, s.span.clone(), format!("{shown} implies an impossible charge of {}", signed_text(real))));
+            self.push(Diagnostic::new(
+                Code::OxidationState,
+                s.span.clone(),
+                format!(
+                    "{shown} implies an impossible charge of {}",
+                    signed_text(real)
+                ),
+            ));
             return;
         };
         let interstitial = matches!(s.site, Some(Site::Interstitial));
-        let elemental_host = self.host.is_some_and(|h| h.sublattices.iter().all(|x| x.charge == Q::from_integer(0)));
+        let elemental_host = self
+            .host
+            .is_some_and(|h| h.sublattices.iter().all(|x| x.charge == Q::from_integer(0)));
         if element.is_common_state(state) || (state == 0 && (interstitial || elemental_host)) {
             return;
         }
         let ion = ion_text(element.symbol, state);
-        let suggestion = element.common_states.iter().copied().filter(|c| *c != 0).min_by_key(|c| (i64::from(*c) - *site_charge.numer()).abs()).map(|common| {
-            let mut fixed = s.clone();
-            fixed.charge = i32::from(common) - i32::try_from(*site_charge.numer()).unwrap_or(0);
-            format!("{} on this site is {}", ion_text(element.symbol, common), render_species(&fixed, Style::Unicode))
-        });
+        let suggestion = element
+            .common_states
+            .iter()
+            .copied()
+            .filter(|c| *c != 0)
+            .min_by_key(|c| (i64::from(*c) - *site_charge.numer()).abs())
+            .map(|common| {
+                let mut fixed = s.clone();
+                fixed.charge = i32::from(common) - i32::try_from(*site_charge.numer()).unwrap_or(0);
+                format!(
+                    "{} on this site is {}",
+                    ion_text(element.symbol, common),
+                    render_species(&fixed, Style::Unicode)
+                )
+            });
         if element.is_known_state(state) {
-            let mut d = Diagnostic::new(Code::RareOxidationState, s.span.clone(), format!("{shown} implies {ion}, an uncommon oxidation state of {}", element.name.to_lowercase()));
+            let mut d = Diagnostic::new(
+                Code::RareOxidationState,
+                s.span.clone(),
+                format!(
+                    "{shown} implies {ion}, an uncommon oxidation state of {}",
+                    element.name.to_lowercase()
+                ),
+            );
             d.help = suggestion.map(|t| format!("check the charge marks; {t}"));
             self.push(d);
         } else {
-            let known: Vec<String> = element.known_states.iter().map(|k| if *k == 0 { "0".to_string() } else { format!("{k:+}") }).collect();
-            let mut d = Diagnostic::new(Code::OxidationState, s.span.clone(), format!("{shown} implies {ion}, a state {} does not take (known: {})", element.name.to_lowercase(), known.join(", ")))
-                .with_label(format!("implies {ion}"));
+            let known: Vec<String> = element
+                .known_states
+                .iter()
+                .map(|k| {
+                    if *k == 0 {
+                        "0".to_string()
+                    } else {
+                        format!("{k:+}")
+                    }
+                })
+                .collect();
+            let mut d = Diagnostic::new(
+                Code::OxidationState,
+                s.span.clone(),
+                format!(
+                    "{shown} implies {ion}, a state {} does not take (known: {})",
+                    element.name.to_lowercase(),
+                    known.join(", ")
+                ),
+            )
+            .with_label(format!("implies {ion}"));
             d.help = suggestion;
             self.push(d);
         }
     }
 
     /// Adds a term's mass, charge and sites to the table, `scale` times.
-    fn accumulate(&mut self, table: &mut BalanceTable, term: &Term, scale: Q, right: bool) -> Result<(), number::Overflow> {
+    fn accumulate(
+        &mut self,
+        table: &mut BalanceTable,
+        term: &Term,
+        scale: Q,
+        right: bool,
+    ) -> Result<(), number::Overflow> {
         let amount = number::mul(scale, term.coefficient)?;
         let add = |slot: &mut Q, by: Q| -> Result<(), number::Overflow> {
             *slot = number::add(*slot, by)?;
@@ -309,12 +461,18 @@ impl Checker<'_> {
             let index = match table.elements.iter().position(|(e, _, _)| *e == z) {
                 Some(i) => i,
                 None => {
-                    table.elements.push((z, Q::from_integer(0), Q::from_integer(0)));
+                    table
+                        .elements
+                        .push((z, Q::from_integer(0), Q::from_integer(0)));
                     table.elements.len() - 1
                 }
             };
             let row = &mut table.elements[index];
-            if right { add(&mut row.2, by) } else { add(&mut row.1, by) }
+            if right {
+                add(&mut row.2, by)
+            } else {
+                add(&mut row.1, by)
+            }
         };
         match &term.entity {
             Entity::Nil => {}
@@ -331,7 +489,11 @@ impl Checker<'_> {
                 if let Some(declared) = declared {
                     // The parts already added their own charges; replace them by the declared net.
                     let correction = number::mul(amount, declared - a.parts_charge())?;
-                    if right { add(&mut table.charge.1, correction)? } else { add(&mut table.charge.0, correction)? }
+                    if right {
+                        add(&mut table.charge.1, correction)?
+                    } else {
+                        add(&mut table.charge.0, correction)?
+                    }
                 }
             }
             Entity::Species(s) => {
@@ -341,21 +503,39 @@ impl Checker<'_> {
                     }
                 }
                 let by = number::mul(amount, Q::from_integer(i64::from(s.charge)))?;
-                if right { add(&mut table.charge.1, by)? } else { add(&mut table.charge.0, by)? }
+                if right {
+                    add(&mut table.charge.1, by)?
+                } else {
+                    add(&mut table.charge.0, by)?
+                }
                 if let (Some(Site::Lattice { element, label }), Some(host)) = (&s.site, self.host) {
                     if let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) {
                         if table.sites.is_empty() {
-                            table.sites = host.sublattices.iter().map(|x| (x.name(), x.count, Q::from_integer(0), Q::from_integer(0))).collect();
+                            table.sites = host
+                                .sublattices
+                                .iter()
+                                .map(|x| {
+                                    (x.name(), x.count, Q::from_integer(0), Q::from_integer(0))
+                                })
+                                .collect();
                         }
                         let row = &mut table.sites[i];
-                        if right { add(&mut row.3, amount)? } else { add(&mut row.2, amount)? }
+                        if right {
+                            add(&mut row.3, amount)?
+                        } else {
+                            add(&mut row.2, amount)?
+                        }
                     }
                 }
             }
         }
         if table.sites.is_empty() {
             if let Some(host) = self.host {
-                table.sites = host.sublattices.iter().map(|x| (x.name(), x.count, Q::from_integer(0), Q::from_integer(0))).collect();
+                table.sites = host
+                    .sublattices
+                    .iter()
+                    .map(|x| (x.name(), x.count, Q::from_integer(0), Q::from_integer(0)))
+                    .collect();
             }
         }
         Ok(())
@@ -366,7 +546,14 @@ impl Checker<'_> {
             .elements
             .iter()
             .filter(|(_, l, r)| l != r)
-            .map(|(z, l, r)| format!("{} left {}, right {}", symbol(*z), number::to_plain(*l), number::to_plain(*r)))
+            .map(|(z, l, r)| {
+                format!(
+                    "{} left {}, right {}",
+                    symbol(*z),
+                    number::to_plain(*l),
+                    number::to_plain(*r)
+                )
+            })
             .collect();
         self.push(
             Diagnostic::new(Code::MassBalance, reaction.span.clone(), format!("mass does not balance: {}", off.join("; ")))
@@ -376,7 +563,11 @@ impl Checker<'_> {
 
     fn charge_diagnostic(&mut self, reaction: &Reaction, table: &BalanceTable) {
         let (left, right) = table.charge;
-        let message = format!("charge does not balance: left {}, right {}", signed_text(left), signed_text(right));
+        let message = format!(
+            "charge does not balance: left {}, right {}",
+            signed_text(left),
+            signed_text(right)
+        );
         let mut diagnostic = Diagnostic::new(Code::ChargeBalance, reaction.span.clone(), message);
         // Point at one species whose charge mark, corrected, would balance the
         // reaction with a plausible charge: usually the typo.
@@ -385,25 +576,40 @@ impl Checker<'_> {
             diagnostic.label = Some(note);
             diagnostic.help = Some(format!("with {fixed} the charges balance"));
         } else {
-            diagnostic.help = Some("the sum of effective charges times coefficients must be equal on both sides".into());
+            diagnostic.help = Some(
+                "the sum of effective charges times coefficients must be equal on both sides"
+                    .into(),
+            );
         }
         self.push(diagnostic);
     }
 
-    fn charge_culprit(&self, reaction: &Reaction, excess_right: Q) -> Option<(Span, String, String)> {
+    fn charge_culprit(
+        &self,
+        reaction: &Reaction,
+        excess_right: Q,
+    ) -> Option<(Span, String, String)> {
         let host = self.host?;
         let mut candidates = Vec::new();
         for (right, term) in reaction.terms() {
-            let Entity::Species(s) = &term.entity else { continue };
-            let Some(Site::Lattice { element, label }) = &s.site else { continue };
-            let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) else { continue };
+            let Entity::Species(s) = &term.entity else {
+                continue;
+            };
+            let Some(Site::Lattice { element, label }) = &s.site else {
+                continue;
+            };
+            let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) else {
+                continue;
+            };
             let site_charge = host.sublattices[i].charge;
             let delta = if right { -excess_right } else { excess_right } / term.coefficient;
             if !delta.is_integer() {
                 continue;
             }
             let new_charge = i64::from(s.charge) + delta.numer();
-            let Ok(new_charge) = i32::try_from(new_charge) else { continue };
+            let Ok(new_charge) = i32::try_from(new_charge) else {
+                continue;
+            };
             let mut fixed = s.clone();
             fixed.charge = new_charge;
             let fixed_text = render_species(&fixed, Style::Unicode);
@@ -411,21 +617,42 @@ impl Checker<'_> {
             let (plausible, note) = match &s.occupant {
                 Occupant::Vacancy(_) => {
                     let full = -site_charge;
-                    let ok = if full >= Q::from_integer(0) { q >= Q::from_integer(0) && q <= full } else { q <= Q::from_integer(0) && q >= full };
-                    let site_name = elements::by_z(*element).map_or("", |e| e.name).to_lowercase();
+                    let ok = if full >= Q::from_integer(0) {
+                        q >= Q::from_integer(0) && q <= full
+                    } else {
+                        q <= Q::from_integer(0) && q >= full
+                    };
+                    let site_name = elements::by_z(*element)
+                        .map_or("", |e| e.name)
+                        .to_lowercase();
                     let note = if q == full {
-                        let carriers = if full > Q::from_integer(0) { "electrons" } else { "holes" };
-                        format!("a{} {site_name} vacancy with all its {carriers} released is {fixed_text}", if site_name.starts_with(['a', 'e', 'i', 'o', 'u']) { "n" } else { "" })
+                        let carriers = if full > Q::from_integer(0) {
+                            "electrons"
+                        } else {
+                            "holes"
+                        };
+                        format!(
+                            "a{} {site_name} vacancy with all its {carriers} released is {fixed_text}",
+                            if site_name.starts_with(['a', 'e', 'i', 'o', 'u']) {
+                                "n"
+                            } else {
+                                ""
+                            }
+                        )
                     } else {
                         format!("balances as {fixed_text}")
                     };
                     (ok, note)
                 }
                 Occupant::Atoms { formula, .. } => {
-                    let ok = formula.single_element().and_then(elements::by_z).is_some_and(|e| {
-                        let real = q + site_charge;
-                        real.is_integer() && i8::try_from(*real.numer()).is_ok_and(|st| e.is_common_state(st))
-                    });
+                    let ok = formula
+                        .single_element()
+                        .and_then(elements::by_z)
+                        .is_some_and(|e| {
+                            let real = q + site_charge;
+                            real.is_integer()
+                                && i8::try_from(*real.numer()).is_ok_and(|st| e.is_common_state(st))
+                        });
                     (ok, format!("balances as {fixed_text}"))
                 }
                 _ => (false, String::new()),
@@ -434,18 +661,40 @@ impl Checker<'_> {
                 candidates.push((s.span.clone(), fixed_text, note));
             }
         }
-        if candidates.len() == 1 { candidates.pop() } else { None }
+        if candidates.len() == 1 {
+            candidates.pop()
+        } else {
+            None
+        }
     }
 
     fn site_diagnostic(&mut self, reaction: &Reaction, table: &BalanceTable) {
         let Some(host) = self.host else { return };
-        let changes: Vec<String> = table.sites.iter().map(|(name, _, l, r)| format!("{name} {}", change_text(r - l))).collect();
-        let mut message = format!("sites break the {} ratio {}: net change {}", host.formula_text, host.ratio_text(), changes.join(", "));
+        let changes: Vec<String> = table
+            .sites
+            .iter()
+            .map(|(name, _, l, r)| format!("{name} {}", change_text(r - l)))
+            .collect();
+        let mut message = format!(
+            "sites break the {} ratio {}: net change {}",
+            host.formula_text,
+            host.ratio_text(),
+            changes.join(", ")
+        );
         // Say what the other sublattices would need, scaled to the first that changed.
         if let Some((name, count, l, r)) = table.sites.iter().find(|(_, _, l, r)| l != r) {
             let lambda = (r - l) / count;
-            let needed: Vec<String> = table.sites.iter().filter(|(n, ..)| n != name).map(|(n, c, ..)| format!("{n} {}", change_text(lambda * c))).collect();
-            message.push_str(&format!(" (for {name} {} the host needs {})", change_text(r - l), needed.join(", ")));
+            let needed: Vec<String> = table
+                .sites
+                .iter()
+                .filter(|(n, ..)| n != name)
+                .map(|(n, c, ..)| format!("{n} {}", change_text(lambda * c)))
+                .collect();
+            message.push_str(&format!(
+                " (for {name} {} the host needs {})",
+                change_text(r - l),
+                needed.join(", ")
+            ));
         }
         self.push(
             Diagnostic::new(Code::SiteBalance, reaction.span.clone(), message)
@@ -455,17 +704,24 @@ impl Checker<'_> {
 
     fn same_on_both_sides(&mut self, reaction: &Reaction) {
         let keys = |terms: &[Term]| -> Vec<(SpeciesKey, Span)> {
-            terms.iter().filter_map(|t| match &t.entity {
-                Entity::Species(s) => Some((s.key(), s.span.clone())),
-                _ => None,
-            }).collect()
+            terms
+                .iter()
+                .filter_map(|t| match &t.entity {
+                    Entity::Species(s) => Some((s.key(), s.span.clone())),
+                    _ => None,
+                })
+                .collect()
         };
         let left = keys(&reaction.left);
         for (key, span) in keys(&reaction.right) {
             if left.iter().any(|(k, _)| *k == key) {
                 self.push(
-                    Diagnostic::new(Code::SameOnBothSides, span, "this species appears on both sides")
-                        .with_help("cancel it from both sides, or check for a typo"),
+                    Diagnostic::new(
+                        Code::SameOnBothSides,
+                        span,
+                        "this species appears on both sides",
+                    )
+                    .with_help("cancel it from both sides, or check for a typo"),
                 );
             }
         }

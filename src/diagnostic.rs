@@ -209,7 +209,10 @@ mod tests {
         let mut seen = std::collections::HashSet::new();
         for code in Code::ALL {
             assert!(seen.insert(code.as_str()), "duplicate {code}");
-            assert_eq!(Code::from_str_id(&code.as_str().to_lowercase()), Some(*code));
+            assert_eq!(
+                Code::from_str_id(&code.as_str().to_lowercase()),
+                Some(*code)
+            );
             assert!(!code.explanation().is_empty());
         }
     }

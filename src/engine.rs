@@ -36,7 +36,8 @@ pub struct ReactionReport<'a> {
 impl ReactionReport<'_> {
     /// False when a balance fails or any error was reported.
     pub fn ok(&self) -> bool {
-        self.verdict.as_ref().is_some_and(Verdict::ok) && !self.diagnostics.iter().any(Diagnostic::is_error)
+        self.verdict.as_ref().is_some_and(Verdict::ok)
+            && !self.diagnostics.iter().any(Diagnostic::is_error)
     }
 }
 
@@ -45,7 +46,12 @@ pub trait Sink {
     fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()>;
     /// A problem on a line that is not a reaction (a host declaration, an
     /// unknown keyword, bad encoding), or not tied to a line at all (line 0).
-    fn line_problem(&mut self, source: &str, line_text: &str, diagnostic: &Diagnostic) -> io::Result<()>;
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()>;
     fn finish(&mut self, summary: &Summary) -> io::Result<()>;
 }
 
@@ -92,13 +98,20 @@ struct SourceState {
 
 impl<'s> Checker<'s> {
     pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
-        Checker { default_host, sink, summary: Summary::default() }
+        Checker {
+            default_host,
+            sink,
+            summary: Summary::default(),
+        }
     }
 
     /// Checks a reaction file (or stdin) read line by line.
     pub fn check_reader(&mut self, name: &str, mut reader: impl BufRead) -> io::Result<()> {
         self.summary.sources += 1;
-        let mut state = SourceState { host: self.default_host.clone(), broken_host_line: None };
+        let mut state = SourceState {
+            host: self.default_host.clone(),
+            broken_host_line: None,
+        };
         let mut buffer = Vec::with_capacity(256);
         let mut number: u32 = 0;
         loop {
@@ -114,9 +127,16 @@ impl<'s> Checker<'s> {
                 Err(e) => {
                     let valid = String::from_utf8_lossy(&bytes[..e.valid_up_to()]).into_owned();
                     let shown = String::from_utf8_lossy(bytes).into_owned();
-                    let diagnostic = Diagnostic::new(Code::Encoding, valid.len()..valid.len() + 1, format!("line {number} is not valid UTF-8 (byte {} of the line)", e.valid_up_to() + 1))
-                        .with_help("save the file as UTF-8; the rest of the file is still checked")
-                        .locate(number, &valid);
+                    let diagnostic = Diagnostic::new(
+                        Code::Encoding,
+                        valid.len()..valid.len() + 1,
+                        format!(
+                            "line {number} is not valid UTF-8 (byte {} of the line)",
+                            e.valid_up_to() + 1
+                        ),
+                    )
+                    .with_help("save the file as UTF-8; the rest of the file is still checked")
+                    .locate(number, &valid);
                     self.summary.count(std::slice::from_ref(&diagnostic));
                     self.sink.line_problem(name, &shown, &diagnostic)?;
                 }
@@ -130,7 +150,13 @@ impl<'s> Checker<'s> {
         self.check_reader(name, text.as_bytes())
     }
 
-    fn check_line(&mut self, name: &str, number: u32, text: &str, state: &mut SourceState) -> io::Result<()> {
+    fn check_line(
+        &mut self,
+        name: &str,
+        number: u32,
+        text: &str,
+        state: &mut SourceState,
+    ) -> io::Result<()> {
         match classify(text) {
             Line::Blank | Line::Comment => Ok(()),
             Line::Host(span) => {
@@ -159,10 +185,7 @@ impl<'s> Checker<'s> {
             }
             Line::Reaction { label, reaction } => {
                 let (parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
-                let verdict = parsed.as_ref().map(|r| {
-                    let verdict = check_reaction(r, state.host.as_ref());
-                    verdict
-                });
+                let verdict = parsed.as_ref().map(|r| check_reaction(r, state.host.as_ref()));
                 if let Some(v) = &verdict {
                     for d in &v.diagnostics {
                         if d.code == Code::NoHost {
@@ -177,7 +200,10 @@ impl<'s> Checker<'s> {
                         diagnostics.push(d.clone());
                     }
                 }
-                let diagnostics: Vec<Diagnostic> = diagnostics.into_iter().map(|d| d.locate(number, text)).collect();
+                let diagnostics: Vec<Diagnostic> = diagnostics
+                    .into_iter()
+                    .map(|d| d.locate(number, text))
+                    .collect();
                 let report = ReactionReport {
                     source: name,
                     line: number,

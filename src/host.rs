@@ -56,8 +56,17 @@ pub enum SiteLookup {
 }
 
 /// Elements taken as anions at their usual oxidation state when inferring.
-const ANIONS: &[(&str, i64)] =
-    &[("O", -2), ("S", -2), ("Se", -2), ("Te", -2), ("F", -1), ("Cl", -1), ("Br", -1), ("I", -1), ("N", -3)];
+const ANIONS: &[(&str, i64)] = &[
+    ("O", -2),
+    ("S", -2),
+    ("Se", -2),
+    ("Te", -2),
+    ("F", -1),
+    ("Cl", -1),
+    ("Br", -1),
+    ("I", -1),
+    ("N", -3),
+];
 
 impl Host {
     /// Parses a host specification at `within` of `source` (spans refer to `source`).
@@ -68,25 +77,34 @@ impl Host {
         let lead = text.len() - text.trim_start().len();
         let text = text.trim();
         let start = within.start + lead;
-        let (formula_part, sites_part) = match text.find(" sites ").or_else(|| text.find("\tsites ")) {
-            Some(i) => (&text[..i], Some((start + i + 7, &text[i + 7..]))),
-            None => match text.strip_suffix(" sites") {
-                Some(f) => (f, Some((start + text.len(), ""))),
-                None => (text, None),
-            },
-        };
+        let (formula_part, sites_part) =
+            match text.find(" sites ").or_else(|| text.find("\tsites ")) {
+                Some(i) => (&text[..i], Some((start + i + 7, &text[i + 7..]))),
+                None => match text.strip_suffix(" sites") {
+                    Some(f) => (f, Some((start + text.len(), ""))),
+                    None => (text, None),
+                },
+            };
         let formula_span = start..start + formula_part.trim_end().len();
         if formula_span.is_empty() {
-            return Err(vec![Diagnostic::new(Code::HostFormula, within, "the host has no formula")
-                .with_help("write a formula such as `host ZrO2`")]);
+            return Err(vec![
+                Diagnostic::new(Code::HostFormula, within, "the host has no formula")
+                    .with_help("write a formula such as `host ZrO2`"),
+            ]);
         }
         let formula = merge(parse_formula(source, formula_span.clone())?);
         let formula_text = source[formula_span.clone()].to_string();
         let sublattices = match sites_part {
             Some((offset, decl)) => explicit_sites(offset, decl, &formula, &formula_span)?,
-            None => infer_sites(&formula, &formula_text).map_err(|d| vec![d.with_span(formula_span.clone())])?,
+            None => infer_sites(&formula, &formula_text)
+                .map_err(|d| vec![d.with_span(formula_span.clone())])?,
         };
-        Ok(Host { formula_text, formula, sublattices, inferred: sites_part.is_none() })
+        Ok(Host {
+            formula_text,
+            formula,
+            sublattices,
+            inferred: sites_part.is_none(),
+        })
     }
 
     /// Parses a whole specification string, as given with `--host`.
@@ -96,7 +114,11 @@ impl Host {
 
     /// Finds the sublattice for a site written as `element[:label]`.
     pub fn lookup(&self, element: u8, label: Option<&str>) -> SiteLookup {
-        let mut of_element = self.sublattices.iter().enumerate().filter(|(_, s)| s.element == element);
+        let mut of_element = self
+            .sublattices
+            .iter()
+            .enumerate()
+            .filter(|(_, s)| s.element == element);
         match label {
             Some(label) => of_element
                 .find(|(_, s)| s.label.as_deref() == Some(label))
@@ -117,23 +139,41 @@ impl Host {
     /// `Zr:O = 1:2`.
     pub fn ratio_text(&self) -> String {
         let names: Vec<String> = self.sublattices.iter().map(Sublattice::name).collect();
-        let counts: Vec<String> = self.sublattices.iter().map(|s| number::to_plain(s.count)).collect();
+        let counts: Vec<String> = self
+            .sublattices
+            .iter()
+            .map(|s| number::to_plain(s.count))
+            .collect();
         format!("{} = {}", names.join(" : "), counts.join(" : "))
     }
 
     /// One line per sublattice, for `--verbose` output and the REPL.
     pub fn describe(&self) -> String {
         let mut out = format!("host {} ({}", self.formula_text, self.ratio_text());
-        out.push_str(if self.inferred { "; charges inferred)" } else { ")" });
+        out.push_str(if self.inferred {
+            "; charges inferred)"
+        } else {
+            ")"
+        });
         for s in &self.sublattices {
-            let _ = write!(out, "\n  {:<6} formal charge {:>5}  sites {}", s.name(), signed(s.charge), number::to_plain(s.count));
+            let _ = write!(
+                out,
+                "\n  {:<6} formal charge {:>5}  sites {}",
+                s.name(),
+                signed(s.charge),
+                number::to_plain(s.count)
+            );
         }
         out
     }
 }
 
 fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) { format!("+{}", number::to_plain(q)) } else { number::to_plain(q) }
+    if q > Q::from_integer(0) {
+        format!("+{}", number::to_plain(q))
+    } else {
+        number::to_plain(q)
+    }
 }
 
 /// Sums repeated elements (`CH3COOH` style formulas) into one count each.
@@ -168,13 +208,22 @@ fn symbol(z: u8) -> &'static str {
 fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnostic> {
     let explicit_help = || {
         let mut example = format!("state the charges, e.g. `host {text} sites ");
-        let parts: Vec<String> = formula.atoms.iter().map(|(z, _)| format!("{} <charge>", symbol(*z))).collect();
+        let parts: Vec<String> = formula
+            .atoms
+            .iter()
+            .map(|(z, _)| format!("{} <charge>", symbol(*z)))
+            .collect();
         example.push_str(&parts.join(", "));
         example.push('`');
         example
     };
     if let [(z, n)] = formula.atoms.as_slice() {
-        return Ok(vec![Sublattice { element: *z, label: None, charge: Q::from_integer(0), count: *n }]);
+        return Ok(vec![Sublattice {
+            element: *z,
+            label: None,
+            charge: Q::from_integer(0),
+            count: *n,
+        }]);
     }
     let mut anion_charge = Q::from_integer(0);
     let mut cations: Vec<(u8, Q)> = Vec::new();
@@ -189,14 +238,24 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
         }
     }
     if cations.is_empty() || anion_charge == Q::from_integer(0) {
-        return Err(Diagnostic::new(Code::HostAmbiguous, 0..0, format!("cannot tell the cations from the anions in `{text}`"))
-            .with_help(explicit_help()));
+        return Err(Diagnostic::new(
+            Code::HostAmbiguous,
+            0..0,
+            format!("cannot tell the cations from the anions in `{text}`"),
+        )
+        .with_help(explicit_help()));
     }
     let options: Vec<Vec<i64>> = cations
         .iter()
         .map(|(z, _)| {
             elements::by_z(*z)
-                .map(|e| e.common_states.iter().filter(|s| **s > 0).map(|s| i64::from(*s)).collect())
+                .map(|e| {
+                    e.common_states
+                        .iter()
+                        .filter(|s| **s > 0)
+                        .map(|s| i64::from(*s))
+                        .collect()
+                })
                 .unwrap_or_default()
         })
         .collect();
@@ -205,7 +264,12 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
     if total <= 100_000 && options.iter().all(|o| !o.is_empty()) {
         let mut index = vec![0usize; cations.len()];
         'outer: loop {
-            let sum: Q = cations.iter().zip(&index).zip(&options).map(|(((_, n), i), o)| Q::from_integer(o[*i]) * n).sum();
+            let sum: Q = cations
+                .iter()
+                .zip(&index)
+                .zip(&options)
+                .map(|(((_, n), i), o)| Q::from_integer(o[*i]) * n)
+                .sum();
             if sum + anion_charge == Q::from_integer(0) {
                 solutions.push(index.iter().zip(&options).map(|(i, o)| o[*i]).collect());
             }
@@ -228,36 +292,67 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
         [] => {
             let message = if cations.len() == 1 {
                 let average = -anion_charge / cations[0].1;
-                format!("`{text}` needs {} at an average charge of {}, which is not one of its common oxidation states", symbol(cations[0].0), number::to_plain(average))
+                format!(
+                    "`{text}` needs {} at an average charge of {}, which is not one of its common oxidation states",
+                    symbol(cations[0].0),
+                    number::to_plain(average)
+                )
             } else {
                 format!("no combination of common oxidation states makes `{text}` neutral")
             };
-            return Err(Diagnostic::new(Code::HostAmbiguous, 0..0, message).with_help(explicit_help()));
+            return Err(
+                Diagnostic::new(Code::HostAmbiguous, 0..0, message).with_help(explicit_help())
+            );
         }
         many => {
             let shown: Vec<String> = many
                 .iter()
                 .take(4)
                 .map(|states| {
-                    cations.iter().zip(states).map(|((z, _), s)| format!("{}{:+}", symbol(*z), s)).collect::<Vec<_>>().join(" ")
+                    cations
+                        .iter()
+                        .zip(states)
+                        .map(|((z, _), s)| format!("{}{:+}", symbol(*z), s))
+                        .collect::<Vec<_>>()
+                        .join(" ")
                 })
                 .collect();
-            return Err(Diagnostic::new(Code::HostAmbiguous, 0..0, format!("`{text}` fits more than one set of oxidation states: {}", shown.join("; ")))
-                .with_help(explicit_help()));
+            return Err(Diagnostic::new(
+                Code::HostAmbiguous,
+                0..0,
+                format!(
+                    "`{text}` fits more than one set of oxidation states: {}",
+                    shown.join("; ")
+                ),
+            )
+            .with_help(explicit_help()));
         }
     }
     Ok(formula
         .atoms
         .iter()
         .map(|(z, n)| {
-            let charge = charges.iter().find(|(e, _)| e == z).map_or(Q::from_integer(0), |(_, c)| *c);
-            Sublattice { element: *z, label: None, charge, count: *n }
+            let charge = charges
+                .iter()
+                .find(|(e, _)| e == z)
+                .map_or(Q::from_integer(0), |(_, c)| *c);
+            Sublattice {
+                element: *z,
+                label: None,
+                charge,
+                count: *n,
+            }
         })
         .collect())
 }
 
 /// `site-decl = symbol [ ":" label ] signed-number [ ( "x" | "×" | "*" ) number ] ;`
-fn explicit_sites(offset: usize, decl: &str, formula: &Formula, formula_span: &Span) -> Result<Vec<Sublattice>, Vec<Diagnostic>> {
+fn explicit_sites(
+    offset: usize,
+    decl: &str,
+    formula: &Formula,
+    formula_span: &Span,
+) -> Result<Vec<Sublattice>, Vec<Diagnostic>> {
     let mut diags = Vec::new();
     let mut sites: Vec<(Sublattice, Span, bool)> = Vec::new();
     let mut at = offset;
@@ -268,8 +363,9 @@ fn explicit_sites(offset: usize, decl: &str, formula: &Formula, formula_span: &S
         let entry_span = span_all.start + lead..span_all.start + lead + entry.trim().len();
         let words: Vec<&str> = entry.split_whitespace().collect();
         let bad = |msg: String| {
-            Diagnostic::new(Code::HostFormula, entry_span.clone(), msg)
-                .with_help("write each site as `Element[:label] charge [xcount]`, e.g. `Fe:A +3 x1`")
+            Diagnostic::new(Code::HostFormula, entry_span.clone(), msg).with_help(
+                "write each site as `Element[:label] charge [xcount]`, e.g. `Fe:A +3 x1`",
+            )
         };
         let (name, charge_text, count_text) = match words.as_slice() {
             [name, charge] => (*name, *charge, None),
@@ -280,7 +376,9 @@ fn explicit_sites(offset: usize, decl: &str, formula: &Formula, formula_span: &S
             }
         };
         let (symbol_text, label) = match name.split_once(':') {
-            Some((s, l)) if !l.is_empty() && l.chars().all(|c| c.is_ascii_alphanumeric()) => (s, Some(Box::<str>::from(l))),
+            Some((s, l)) if !l.is_empty() && l.chars().all(|c| c.is_ascii_alphanumeric()) => {
+                (s, Some(Box::<str>::from(l)))
+            }
             Some(_) => {
                 diags.push(bad(format!("`{name}` has an empty or invalid label")));
                 continue;
@@ -310,39 +408,91 @@ fn explicit_sites(offset: usize, decl: &str, formula: &Formula, formula_span: &S
             None => None,
         };
         let given = count.is_some();
-        sites.push((Sublattice { element: element.z, label, charge, count: count.unwrap_or(formula.count(element.z)) }, entry_span, given));
+        sites.push((
+            Sublattice {
+                element: element.z,
+                label,
+                charge,
+                count: count.unwrap_or(formula.count(element.z)),
+            },
+            entry_span,
+            given,
+        ));
     }
     if !diags.is_empty() {
         return Err(diags);
     }
     for (z, n) in &formula.atoms {
-        let of: Vec<&(Sublattice, Span, bool)> = sites.iter().filter(|(s, _, _)| s.element == *z).collect();
+        let of: Vec<&(Sublattice, Span, bool)> =
+            sites.iter().filter(|(s, _, _)| s.element == *z).collect();
         if of.is_empty() {
-            diags.push(Diagnostic::new(Code::HostFormula, formula_span.clone(), format!("{} has no site declared", symbol(*z)))
-                .with_help(format!("add `{} <charge>` to the sites", symbol(*z))));
+            diags.push(
+                Diagnostic::new(
+                    Code::HostFormula,
+                    formula_span.clone(),
+                    format!("{} has no site declared", symbol(*z)),
+                )
+                .with_help(format!("add `{} <charge>` to the sites", symbol(*z))),
+            );
             continue;
         }
         if of.len() > 1 && of.iter().any(|(_, _, given)| !given) {
-            diags.push(Diagnostic::new(Code::HostFormula, of[0].1.clone(), format!("{} sits on {} sublattices; give each a count", symbol(*z), of.len()))
-                .with_help("e.g. `Fe:A +3 x1, Fe:B +5/2 x2`"));
+            diags.push(
+                Diagnostic::new(
+                    Code::HostFormula,
+                    of[0].1.clone(),
+                    format!(
+                        "{} sits on {} sublattices; give each a count",
+                        symbol(*z),
+                        of.len()
+                    ),
+                )
+                .with_help("e.g. `Fe:A +3 x1, Fe:B +5/2 x2`"),
+            );
             continue;
         }
         let sum: Q = of.iter().map(|(s, _, _)| s.count).sum();
         if sum != *n {
-            diags.push(Diagnostic::new(Code::HostFormula, of[0].1.clone(), format!("the {} sites add up to {} per formula unit, the formula has {}", symbol(*z), number::to_plain(sum), number::to_plain(*n))));
+            diags.push(Diagnostic::new(
+                Code::HostFormula,
+                of[0].1.clone(),
+                format!(
+                    "the {} sites add up to {} per formula unit, the formula has {}",
+                    symbol(*z),
+                    number::to_plain(sum),
+                    number::to_plain(*n)
+                ),
+            ));
         }
         let mut labels: Vec<Option<&str>> = of.iter().map(|(s, _, _)| s.label.as_deref()).collect();
         labels.sort();
         if labels.windows(2).any(|w| w[0] == w[1]) {
-            diags.push(Diagnostic::new(Code::HostFormula, of[0].1.clone(), format!("{} sublattices need distinct labels", symbol(*z))));
+            diags.push(Diagnostic::new(
+                Code::HostFormula,
+                of[0].1.clone(),
+                format!("{} sublattices need distinct labels", symbol(*z)),
+            ));
         }
     }
     let net: Q = sites.iter().map(|(s, _, _)| s.charge * s.count).sum();
     if diags.is_empty() && net != Q::from_integer(0) {
-        diags.push(Diagnostic::new(Code::HostFormula, offset..offset + decl.len(), format!("the declared charges leave the formula unit with charge {}", number::to_plain(net)))
-            .with_help("formal charges times site counts must add up to zero"));
+        diags.push(
+            Diagnostic::new(
+                Code::HostFormula,
+                offset..offset + decl.len(),
+                format!(
+                    "the declared charges leave the formula unit with charge {}",
+                    number::to_plain(net)
+                ),
+            )
+            .with_help("formal charges times site counts must add up to zero"),
+        );
     }
-    if diags.is_empty() { Ok(sites.into_iter().map(|(s, _, _)| s).collect()) } else { Err(diags) }
+    if diags.is_empty() {
+        Ok(sites.into_iter().map(|(s, _, _)| s).collect())
+    } else {
+        Err(diags)
+    }
 }
 
 #[cfg(test)]
@@ -351,7 +501,16 @@ mod tests {
 
     fn charges(spec: &str) -> Vec<(String, String, String)> {
         let host = Host::from_spec(spec).unwrap_or_else(|d| panic!("{spec}: {d:?}"));
-        host.sublattices.iter().map(|s| (s.name(), number::to_plain(s.charge), number::to_plain(s.count))).collect()
+        host.sublattices
+            .iter()
+            .map(|s| {
+                (
+                    s.name(),
+                    number::to_plain(s.charge),
+                    number::to_plain(s.count),
+                )
+            })
+            .collect()
     }
 
     fn row(name: &str, charge: &str, count: &str) -> (String, String, String) {
@@ -361,12 +520,38 @@ mod tests {
     // source: common practice (formal oxidation states of these hosts are textbook facts).
     #[test]
     fn infers_common_hosts() {
-        assert_eq!(charges("ZrO2"), vec![row("Zr", "4", "1"), row("O", "-2", "2")]);
-        assert_eq!(charges("BaTiO3"), vec![row("Ba", "2", "1"), row("Ti", "4", "1"), row("O", "-2", "3")]);
-        assert_eq!(charges("Al2O3"), vec![row("Al", "3", "2"), row("O", "-2", "3")]);
-        assert_eq!(charges("MgAl2O4"), vec![row("Mg", "2", "1"), row("Al", "3", "2"), row("O", "-2", "4")]);
-        assert_eq!(charges("Fe2O3"), vec![row("Fe", "3", "2"), row("O", "-2", "3")]);
-        assert_eq!(charges("NaCl"), vec![row("Na", "1", "1"), row("Cl", "-1", "1")]);
+        assert_eq!(
+            charges("ZrO2"),
+            vec![row("Zr", "4", "1"), row("O", "-2", "2")]
+        );
+        assert_eq!(
+            charges("BaTiO3"),
+            vec![
+                row("Ba", "2", "1"),
+                row("Ti", "4", "1"),
+                row("O", "-2", "3")
+            ]
+        );
+        assert_eq!(
+            charges("Al2O3"),
+            vec![row("Al", "3", "2"), row("O", "-2", "3")]
+        );
+        assert_eq!(
+            charges("MgAl2O4"),
+            vec![
+                row("Mg", "2", "1"),
+                row("Al", "3", "2"),
+                row("O", "-2", "4")
+            ]
+        );
+        assert_eq!(
+            charges("Fe2O3"),
+            vec![row("Fe", "3", "2"), row("O", "-2", "3")]
+        );
+        assert_eq!(
+            charges("NaCl"),
+            vec![row("Na", "1", "1"), row("Cl", "-1", "1")]
+        );
         assert_eq!(charges("Al"), vec![row("Al", "0", "1")]);
     }
 
@@ -377,7 +562,11 @@ mod tests {
         assert!(err[0].message.contains("8/3"), "{}", err[0].message);
         assert_eq!(
             charges("Fe3O4 sites Fe:A +3 x1, Fe:B +5/2 x2, O -2"),
-            vec![row("Fe:A", "3", "1"), row("Fe:B", "5/2", "2"), row("O", "-2", "4")]
+            vec![
+                row("Fe:A", "3", "1"),
+                row("Fe:B", "5/2", "2"),
+                row("O", "-2", "4")
+            ]
         );
     }
 
@@ -390,7 +579,10 @@ mod tests {
             ("ZrO2 sites Zr +4, O -2, Y +3", "no Y"),
         ] {
             let err = Host::from_spec(spec).unwrap_err();
-            assert!(err.iter().any(|d| d.message.contains(needle)), "{spec}: {err:?}");
+            assert!(
+                err.iter().any(|d| d.message.contains(needle)),
+                "{spec}: {err:?}"
+            );
         }
     }
 

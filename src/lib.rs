@@ -6,12 +6,12 @@
 //! results, and `cli` is the thin command-line layer over all of it.
 
 pub mod check;
+pub mod cli;
 pub mod diagnostic;
+pub mod document;
 pub mod elements;
+pub mod engine;
 pub mod host;
 pub mod notation;
 pub mod number;
-pub mod cli;
-pub mod document;
-pub mod engine;
 pub mod render;

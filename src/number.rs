@@ -164,7 +164,10 @@ mod tests {
         assert_eq!(parse("1/0"), Err(NumberError::DivisionByZero));
         assert_eq!(parse("abc"), Err(NumberError::Malformed));
         assert_eq!(parse(""), Err(NumberError::Malformed));
-        assert_eq!(parse("10000000000000000000000000000000000000000"), Err(NumberError::TooLarge));
+        assert_eq!(
+            parse("10000000000000000000000000000000000000000"),
+            Err(NumberError::TooLarge)
+        );
     }
 
     #[test]

@@ -22,7 +22,10 @@ pub type Span = Range<usize>;
 pub enum Occupant {
     /// An element or a group such as `OH`. `escaped` is set for `el:V`, the
     /// spelling that says "vanadium" where a bare `V` would be ambiguous.
-    Atoms { formula: Formula, escaped: bool },
+    Atoms {
+        formula: Formula,
+        escaped: bool,
+    },
     Vacancy(VacancySpelling),
     Electron,
     Hole,
@@ -49,7 +52,11 @@ pub struct Formula {
 impl Formula {
     /// Count of one element, summed over every place it is written.
     pub fn count(&self, z: u8) -> Q {
-        self.atoms.iter().filter(|(e, _)| *e == z).map(|(_, n)| *n).sum()
+        self.atoms
+            .iter()
+            .filter(|(e, _)| *e == z)
+            .map(|(_, n)| *n)
+            .sum()
     }
 
     pub fn contains(&self, z: u8) -> bool {
@@ -70,7 +77,10 @@ impl Formula {
 pub enum Site {
     /// A regular site, named by the element that occupies it in the perfect
     /// host, with an optional sublattice label (`Fe:A`).
-    Lattice { element: u8, label: Option<Box<str>> },
+    Lattice {
+        element: u8,
+        label: Option<Box<str>>,
+    },
     /// `i`
     Interstitial,
 }
@@ -114,10 +124,17 @@ impl Species {
     pub fn key(&self) -> SpeciesKey {
         let occupant = match &self.occupant {
             Occupant::Vacancy(_) => Occupant::Vacancy(VacancySpelling::Bare),
-            Occupant::Atoms { formula, .. } => Occupant::Atoms { formula: formula.clone(), escaped: false },
+            Occupant::Atoms { formula, .. } => Occupant::Atoms {
+                formula: formula.clone(),
+                escaped: false,
+            },
             other => other.clone(),
         };
-        SpeciesKey { occupant, site: self.site.clone(), charge: self.charge }
+        SpeciesKey {
+            occupant,
+            site: self.site.clone(),
+            charge: self.charge,
+        }
     }
 }
 
@@ -147,7 +164,8 @@ impl Associate {
 
     /// The net charge: as declared, or the parts' sum when none was written.
     pub fn net_charge(&self) -> Q {
-        self.charge.map_or_else(|| self.parts_charge(), |c| Q::from_integer(i64::from(c)))
+        self.charge
+            .map_or_else(|| self.parts_charge(), |c| Q::from_integer(i64::from(c)))
     }
 }
 
@@ -210,6 +228,9 @@ pub struct Reaction {
 impl Reaction {
     /// Every term with its side: `false` for the left, `true` for the right.
     pub fn terms(&self) -> impl Iterator<Item = (bool, &Term)> {
-        self.left.iter().map(|t| (false, t)).chain(self.right.iter().map(|t| (true, t)))
+        self.left
+            .iter()
+            .map(|t| (false, t))
+            .chain(self.right.iter().map(|t| (true, t)))
     }
 }

@@ -7,8 +7,8 @@
 //! over `&str`; spans are byte offsets into the caller's line.
 
 use super::{
-    Arrow, Associate, Compound, Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site,
-    Span, Species, Term, VacancySpelling,
+    Arrow, Associate, Compound, Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site, Span,
+    Species, Term, VacancySpelling,
 };
 use crate::diagnostic::{Code, Diagnostic};
 use crate::elements;
@@ -22,7 +22,10 @@ use nom::{IResult, Parser};
 /// Parses the reaction at `within` (a byte range of `source`, the whole line).
 /// Returns the reaction when every term parsed, and every problem found.
 pub fn parse_reaction(source: &str, within: Span) -> (Option<Reaction>, Vec<Diagnostic>) {
-    let mut parser = Parser_ { src: source, diags: Vec::new() };
+    let mut parser = Parser_ {
+        src: source,
+        diags: Vec::new(),
+    };
     let reaction = parser.reaction(within);
     (reaction, parser.diags)
 }
@@ -30,7 +33,10 @@ pub fn parse_reaction(source: &str, within: Span) -> (Option<Reaction>, Vec<Diag
 /// Parses one species, associate or compound written on its own (as on a
 /// command line), with spans relative to `text`.
 pub fn parse_species_text(text: &str) -> Result<Term, Vec<Diagnostic>> {
-    let mut parser = Parser_ { src: text, diags: Vec::new() };
+    let mut parser = Parser_ {
+        src: text,
+        diags: Vec::new(),
+    };
     let trimmed = trim_span(text, 0..text.len());
     match parser.term(trimmed) {
         Some(term) if parser.diags.iter().all(|d| !d.is_error()) => Ok(term),
@@ -41,15 +47,22 @@ pub fn parse_species_text(text: &str) -> Result<Term, Vec<Diagnostic>> {
 /// Parses a compound formula (`ZrO2`, `La0.9Sr0.1MnO3`, `Ba(OH)2`) found at
 /// `within` of `source`; no phase tag, nothing after it.
 pub fn parse_formula(source: &str, within: Span) -> Result<Formula, Vec<Diagnostic>> {
-    let mut parser = Parser_ { src: source, diags: Vec::new() };
+    let mut parser = Parser_ {
+        src: source,
+        diags: Vec::new(),
+    };
     let text = &source[within];
     match parser.formula(text, true) {
         Some((rest, formula)) if rest.is_empty() && !formula.atoms.is_empty() => Ok(formula),
         Some((rest, _)) => {
             let span = parser.span_of(if rest.is_empty() { text } else { rest });
             parser.diags.push(
-                Diagnostic::new(Code::HostFormula, span, format!("`{text}` is not a formula"))
-                    .with_help("write a formula such as `ZrO2`, `BaTiO3` or `La0.9Sr0.1MnO3`"),
+                Diagnostic::new(
+                    Code::HostFormula,
+                    span,
+                    format!("`{text}` is not a formula"),
+                )
+                .with_help("write a formula such as `ZrO2`, `BaTiO3` or `La0.9Sr0.1MnO3`"),
             );
             Err(parser.diags)
         }
@@ -103,7 +116,10 @@ fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
         }
         return Some((len, Arrow::Forward));
     }
-    ARROWS.iter().find(|(spelling, _)| s.starts_with(spelling)).map(|(sp, a)| (sp.len(), *a))
+    ARROWS
+        .iter()
+        .find(|(spelling, _)| s.starts_with(spelling))
+        .map(|(sp, a)| (sp.len(), *a))
 }
 
 fn closing(open: char) -> char {
@@ -146,8 +162,12 @@ impl<'a> Parser_<'a> {
                 if let Some((len, kind)) = arrow_at(&text[i..]) {
                     if let Some((first, _)) = &arrow {
                         let first_col = crate::diagnostic::column_of(self.src, first.start);
-                        self.error(Code::ExtraArrow, at..at + len, "a second arrow in one reaction")
-                            .help = Some(format!(
+                        self.error(
+                            Code::ExtraArrow,
+                            at..at + len,
+                            "a second arrow in one reaction",
+                        )
+                        .help = Some(format!(
                             "the first arrow is at column {first_col}; write each reaction on its own line"
                         ));
                         ok = false;
@@ -165,8 +185,12 @@ impl<'a> Parser_<'a> {
                 ')' | '}' | ']' => match stack.pop() {
                     Some((open, _)) if closing(open) == c => {}
                     Some((open, open_at)) => {
-                        self.error(Code::Brackets, open_at..at + 1, format!("`{open}` is closed by `{c}`"))
-                            .help = Some(format!("close it with `{}`", closing(open)));
+                        self.error(
+                            Code::Brackets,
+                            open_at..at + 1,
+                            format!("`{open}` is closed by `{c}`"),
+                        )
+                        .help = Some(format!("close it with `{}`", closing(open)));
                         ok = false;
                     }
                     None => {
@@ -175,14 +199,22 @@ impl<'a> Parser_<'a> {
                     }
                 },
                 '+' if stack.is_empty() => {
-                    if arrow.is_some() { plus_right.push(at) } else { plus_left.push(at) }
+                    if arrow.is_some() {
+                        plus_right.push(at)
+                    } else {
+                        plus_left.push(at)
+                    }
                 }
                 _ => {}
             }
         }
         for (open, at) in stack.drain(..) {
-            self.error(Code::Brackets, at..at + open.len_utf8(), format!("`{open}` is never closed"))
-                .help = Some(format!("add `{}` at the end of the term", closing(open)));
+            self.error(
+                Code::Brackets,
+                at..at + open.len_utf8(),
+                format!("`{open}` is never closed"),
+            )
+            .help = Some(format!("add `{}` at the end of the term", closing(open)));
             ok = false;
         }
         let Some((arrow_span, arrow)) = arrow else {
@@ -195,7 +227,12 @@ impl<'a> Parser_<'a> {
         }
         let left = self.side(within.start..arrow_span.start, &plus_left, "left");
         let right = self.side(arrow_span.end..within.end, &plus_right, "right");
-        Some(Reaction { left: left?, right: right?, arrow, span: within })
+        Some(Reaction {
+            left: left?,
+            right: right?,
+            arrow,
+            span: within,
+        })
     }
 
     fn side(&mut self, span: Span, pluses: &[usize], name: &str) -> Option<Vec<Term>> {
@@ -210,9 +247,17 @@ impl<'a> Parser_<'a> {
         for pair in bounds.chunks(2) {
             let term_span = trim_span(self.src, pair[0]..pair[1]);
             if term_span.is_empty() {
-                let at = if term_span.start > span.start { term_span.start - 1 } else { term_span.start };
-                self.error(Code::EmptyTerm, at..(at + 1).min(self.src.len()).max(at), format!("the {name} side has an empty term"))
-                    .help = Some("remove the extra `+`, or write `nil` for the perfect crystal".into());
+                let at = if term_span.start > span.start {
+                    term_span.start - 1
+                } else {
+                    term_span.start
+                };
+                self.error(
+                    Code::EmptyTerm,
+                    at..(at + 1).min(self.src.len()).max(at),
+                    format!("the {name} side has an empty term"),
+                )
+                .help = Some("remove the extra `+`, or write `nil` for the perfect crystal".into());
                 ok = false;
                 continue;
             }
@@ -228,7 +273,12 @@ impl<'a> Parser_<'a> {
     fn term(&mut self, span: Span) -> Option<Term> {
         let text = &self.src[span.clone()];
         if NIL_SPELLINGS.contains(&text) {
-            return Some(Term { coefficient: Q::from_integer(1), coefficient_written: false, entity: Entity::Nil, span });
+            return Some(Term {
+                coefficient: Q::from_integer(1),
+                coefficient_written: false,
+                entity: Entity::Nil,
+                span,
+            });
         }
         let (rest, coefficient) = match coefficient(text) {
             Ok((rest, Some(digits))) => match number_value(digits) {
@@ -239,7 +289,11 @@ impl<'a> Parser_<'a> {
                 }
                 Ok(q) => (rest, Some(q)),
                 Err(e) => {
-                    self.error(Code::Number, self.span_of(digits), format!("coefficient `{digits}`: {e}"));
+                    self.error(
+                        Code::Number,
+                        self.span_of(digits),
+                        format!("coefficient `{digits}`: {e}"),
+                    );
                     return None;
                 }
             },
@@ -274,7 +328,10 @@ impl<'a> Parser_<'a> {
                 d.help = Some("write the site after `_`, e.g. `V_O..`, `Y_Zr'`, `O_i''`".into());
             }
         } else if first.is_whitespace() {
-            d.help = Some("terms are joined with `+`; inside an associate, wrap the parts in parentheses".into());
+            d.help = Some(
+                "terms are joined with `+`; inside an associate, wrap the parts in parentheses"
+                    .into(),
+            );
         }
     }
 
@@ -289,7 +346,11 @@ impl<'a> Parser_<'a> {
             }
             return self.compound(text);
         }
-        if text.contains('_') || text.starts_with('□') || text.starts_with("el:") || is_electronic_start(text) {
+        if text.contains('_')
+            || text.starts_with('□')
+            || text.starts_with("el:")
+            || is_electronic_start(text)
+        {
             let (rest, species) = self.species(text)?;
             return Some((rest, Entity::Species(species)));
         }
@@ -303,7 +364,9 @@ impl<'a> Parser_<'a> {
         let mut parts = Vec::new();
         let mut ok = true;
         loop {
-            inner = inner.trim_start_matches(|c: char| c.is_whitespace() || c == ',' || c == ':' || c == '+' || c == '~');
+            inner = inner.trim_start_matches(|c: char| {
+                c.is_whitespace() || c == ',' || c == ':' || c == '+' || c == '~'
+            });
             if inner.is_empty() {
                 break;
             }
@@ -312,7 +375,11 @@ impl<'a> Parser_<'a> {
                 Ok((rest, Some(digits))) => match number_value(digits) {
                     Ok(q) => (rest, Some(q)),
                     Err(e) => {
-                        self.error(Code::Number, self.span_of(digits), format!("coefficient `{digits}`: {e}"));
+                        self.error(
+                            Code::Number,
+                            self.span_of(digits),
+                            format!("coefficient `{digits}`: {e}"),
+                        );
                         return None;
                     }
                 },
@@ -339,7 +406,11 @@ impl<'a> Parser_<'a> {
             return None;
         }
         if parts.is_empty() {
-            self.error(Code::EmptyTerm, self.span_of(&text[..=close]), "an empty associate");
+            self.error(
+                Code::EmptyTerm,
+                self.span_of(&text[..=close]),
+                "an empty associate",
+            );
             return None;
         }
         let after = &text[close + 1..];
@@ -349,7 +420,16 @@ impl<'a> Parser_<'a> {
             Some((c, s)) => (Some(c), s),
             None => (None, MarkStyle::Unmarked),
         };
-        Some((rest, Entity::Associate(Associate { parts, charge, marks: style, braces, span })))
+        Some((
+            rest,
+            Entity::Associate(Associate {
+                parts,
+                charge,
+                marks: style,
+                braces,
+                span,
+            }),
+        ))
     }
 
     /// `species = occupant "_" site [ charge ] | ( "e" | "h" ) [ charge ] ;`
@@ -360,16 +440,39 @@ impl<'a> Parser_<'a> {
             let rest = &text[1..];
             let (rest, marks) = self.charge(rest)?;
             if rest.starts_with('_') {
-                let site_end = rest.find(|c: char| c.is_whitespace() || c == '+' || c == ')' || c == '}').unwrap_or(rest.len());
+                let site_end = rest
+                    .find(|c: char| c.is_whitespace() || c == '+' || c == ')' || c == '}')
+                    .unwrap_or(rest.len());
                 let name = if electron { "an electron" } else { "a hole" };
-                self.error(Code::ElectronicSpecies, self.span_of(&rest[..site_end]), format!("{name} carries no site"))
-                    .help = Some(format!("write `{}` without a subscript", if electron { "e'" } else { "h." }));
+                self.error(
+                    Code::ElectronicSpecies,
+                    self.span_of(&rest[..site_end]),
+                    format!("{name} carries no site"),
+                )
+                .help = Some(format!(
+                    "write `{}` without a subscript",
+                    if electron { "e'" } else { "h." }
+                ));
                 return None;
             }
-            let (charge, style) = marks.unwrap_or((if electron { -1 } else { 1 }, MarkStyle::Unmarked));
-            let occupant = if electron { Occupant::Electron } else { Occupant::Hole };
+            let (charge, style) =
+                marks.unwrap_or((if electron { -1 } else { 1 }, MarkStyle::Unmarked));
+            let occupant = if electron {
+                Occupant::Electron
+            } else {
+                Occupant::Hole
+            };
             let span = self.pos(start)..self.pos(rest);
-            return Some((rest, Species { occupant, site: None, charge, marks: style, span }));
+            return Some((
+                rest,
+                Species {
+                    occupant,
+                    site: None,
+                    charge,
+                    marks: style,
+                    span,
+                },
+            ));
         }
         let (rest, occupant) = self.occupant(text)?;
         let Some(rest) = rest.strip_prefix('_') else {
@@ -382,7 +485,16 @@ impl<'a> Parser_<'a> {
         let (rest, marks) = self.charge(rest)?;
         let (charge, style) = marks.unwrap_or((0, MarkStyle::Unmarked));
         let span = self.pos(start)..self.pos(rest);
-        Some((rest, Species { occupant, site: Some(site), charge, marks: style, span }))
+        Some((
+            rest,
+            Species {
+                occupant,
+                site: Some(site),
+                charge,
+                marks: style,
+                span,
+            },
+        ))
     }
 
     /// `occupant = "V" | "Vac" | "□" | "el:" formula | formula ;`
@@ -403,8 +515,12 @@ impl<'a> Parser_<'a> {
         let (rest, formula) = self.formula(body, false)?;
         if formula.atoms.is_empty() {
             let shown: String = body.chars().take(1).collect();
-            self.error(Code::Syntax, self.span_of(&body[..shown.len()]), format!("`{shown}` cannot start a species"))
-                .help = Some("a species starts with an element, `V` (vacancy), `e` or `h`".into());
+            self.error(
+                Code::Syntax,
+                self.span_of(&body[..shown.len()]),
+                format!("`{shown}` cannot start a species"),
+            )
+            .help = Some("a species starts with an element, `V` (vacancy), `e` or `h`".into());
             return None;
         }
         if !escaped {
@@ -420,8 +536,12 @@ impl<'a> Parser_<'a> {
             candidate.push_str(&written[1..].to_ascii_lowercase());
             if elements::by_symbol(&candidate).is_some() {
                 self.diags.push(
-                    Diagnostic::new(Code::CaseSuspect, self.span_of(written), format!("`{written}` is read as a group of two elements"))
-                        .with_help(format!("if you meant the element, write `{candidate}`")),
+                    Diagnostic::new(
+                        Code::CaseSuspect,
+                        self.span_of(written),
+                        format!("`{written}` is read as a group of two elements"),
+                    )
+                    .with_help(format!("if you meant the element, write `{candidate}`")),
                 );
             }
         }
@@ -435,9 +555,21 @@ impl<'a> Parser_<'a> {
         };
         let result: IResult<&str, &str> = alt((tag("i"), element_symbol)).parse(inner);
         let Ok((rest, name)) = result else {
-            let shown: String = inner.chars().take_while(|c| !c.is_whitespace()).take(4).collect();
+            let shown: String = inner
+                .chars()
+                .take_while(|c| !c.is_whitespace())
+                .take(4)
+                .collect();
             let span = self.span_of(&inner[..shown.len()]);
-            let d = self.error(Code::UnknownSite, span, if shown.is_empty() { "a site subscript is missing".to_string() } else { format!("`{shown}` is not a site") });
+            let d = self.error(
+                Code::UnknownSite,
+                span,
+                if shown.is_empty() {
+                    "a site subscript is missing".to_string()
+                } else {
+                    format!("`{shown}` is not a site")
+                },
+            );
             d.help = Some("a site is an element symbol of the host (`O`, `Zr`, `Fe:A`) or `i` for interstitial".into());
             if shown.starts_with(|c: char| c.is_ascii_digit()) {
                 d.help = Some("for a compound write its formula without `_`, e.g. `Y2O3`".into());
@@ -445,8 +577,15 @@ impl<'a> Parser_<'a> {
             return None;
         };
         if name == "i" && rest.starts_with(|c: char| c.is_ascii_lowercase() && !is_mark_char(c)) {
-            self.error(Code::UnknownSite, self.span_of(&inner[..2.min(inner.len())]), "a site symbol starts with a capital letter")
-                .help = Some("write the element symbol with a capital (`In`, `Ir`), or `i` for interstitial".into());
+            self.error(
+                Code::UnknownSite,
+                self.span_of(&inner[..2.min(inner.len())]),
+                "a site symbol starts with a capital letter",
+            )
+            .help = Some(
+                "write the element symbol with a capital (`In`, `Ir`), or `i` for interstitial"
+                    .into(),
+            );
             return None;
         }
         let site = if name == "i" {
@@ -456,22 +595,41 @@ impl<'a> Parser_<'a> {
                 self.unknown_element(name);
                 return None;
             };
-            Site::Lattice { element: element.z, label: None }
+            Site::Lattice {
+                element: element.z,
+                label: None,
+            }
         };
         let (rest, site) = match (rest.strip_prefix(':'), site) {
             (Some(after), Site::Lattice { element, .. }) => {
-                let label_len = after.find(|c: char| !c.is_ascii_alphanumeric()).unwrap_or(after.len());
+                let label_len = after
+                    .find(|c: char| !c.is_ascii_alphanumeric())
+                    .unwrap_or(after.len());
                 if label_len == 0 {
-                    self.error(Code::UnknownSite, self.span_of(&rest[..1]), "a `:` with no sublattice label after it");
+                    self.error(
+                        Code::UnknownSite,
+                        self.span_of(&rest[..1]),
+                        "a `:` with no sublattice label after it",
+                    );
                     return None;
                 }
-                (&after[label_len..], Site::Lattice { element, label: Some(after[..label_len].into()) })
+                (
+                    &after[label_len..],
+                    Site::Lattice {
+                        element,
+                        label: Some(after[..label_len].into()),
+                    },
+                )
             }
             (_, site) => (rest, site),
         };
         if braced {
             let Some(rest) = rest.strip_prefix('}') else {
-                self.error(Code::Brackets, self.span_of(&text[..1]), "the site's `{` is not closed right after the site");
+                self.error(
+                    Code::Brackets,
+                    self.span_of(&text[..1]),
+                    "the site's `{` is not closed right after the site",
+                );
                 return None;
             };
             return Some((rest, site));
@@ -481,15 +639,24 @@ impl<'a> Parser_<'a> {
 
     fn unknown_element(&mut self, name: &str) {
         let span = self.span_of(name);
-        let d = self.error(Code::UnknownElement, span, format!("`{name}` is not an element symbol"));
+        let d = self.error(
+            Code::UnknownElement,
+            span,
+            format!("`{name}` is not an element symbol"),
+        );
         let mut fixed = name.to_string();
         if let Some(first) = fixed.get(..1) {
             fixed = first.to_ascii_uppercase() + &fixed[1..].to_ascii_lowercase();
         }
         if fixed != name && elements::by_symbol(&fixed).is_some() {
-            d.help = Some(format!("symbols are case-sensitive: did you mean `{fixed}`?"));
+            d.help = Some(format!(
+                "symbols are case-sensitive: did you mean `{fixed}`?"
+            ));
         } else {
-            d.help = Some("symbols are case-sensitive: one capital letter, then at most one small letter".into());
+            d.help = Some(
+                "symbols are case-sensitive: one capital letter, then at most one small letter"
+                    .into(),
+            );
         }
     }
 
@@ -510,7 +677,9 @@ impl<'a> Parser_<'a> {
             if braced {
                 rest = rest.trim_start();
             }
-            let Some((len, value, mark_style)) = mark_at(rest) else { break };
+            let Some((len, value, mark_style)) = mark_at(rest) else {
+                break;
+            };
             style.get_or_insert(mark_style);
             match value {
                 v if v > 0 => plus += v,
@@ -521,7 +690,10 @@ impl<'a> Parser_<'a> {
         }
         if braced {
             let Some(after) = rest.strip_prefix('}') else {
-                let span = self.span_of(rest.get(..rest.chars().next().map_or(0, char::len_utf8)).unwrap_or(""));
+                let span = self.span_of(
+                    rest.get(..rest.chars().next().map_or(0, char::len_utf8))
+                        .unwrap_or(""),
+                );
                 self.error(Code::ChargeMark, span, "the charge's `{` is not closed")
                     .help = Some("write the marks inside the braces, e.g. `V_O^{..}`".into());
                 return None;
@@ -531,16 +703,26 @@ impl<'a> Parser_<'a> {
         let written = &text[..text.len() - rest.len()];
         if style.is_none() {
             if caret {
-                self.error(Code::ChargeMark, self.span_of(written), "`^` with no charge marks after it")
-                    .help = Some("write `.` per +1, `'` per −1 or `x` for neutral".into());
+                self.error(
+                    Code::ChargeMark,
+                    self.span_of(written),
+                    "`^` with no charge marks after it",
+                )
+                .help = Some("write `.` per +1, `'` per −1 or `x` for neutral".into());
                 return None;
             }
             return Some((text, None));
         }
         let span = self.span_of(written);
         if plus > 0 && minus > 0 {
-            self.error(Code::ChargeMark, span, "positive and negative marks mixed in one charge")
-                .help = Some("an effective charge has one sign: dots for positive, primes for negative".into());
+            self.error(
+                Code::ChargeMark,
+                span,
+                "positive and negative marks mixed in one charge",
+            )
+            .help = Some(
+                "an effective charge has one sign: dots for positive, primes for negative".into(),
+            );
             return None;
         }
         if cross > 0 && (plus > 0 || minus > 0 || cross > 1) {
@@ -548,15 +730,26 @@ impl<'a> Parser_<'a> {
                 .help = Some("a cross alone means neutral; drop it or the other marks".into());
             return None;
         }
-        Some((rest, Some((plus - minus, style.unwrap_or(MarkStyle::Ascii)))))
+        Some((
+            rest,
+            Some((plus - minus, style.unwrap_or(MarkStyle::Ascii))),
+        ))
     }
 
     /// `compound = group { group } [ phase ] ;  group = ( symbol | "(" compound ")" ) [ count ] ;`
     fn compound<'s>(&mut self, text: &'s str) -> Option<(&'s str, Entity)> {
         let (rest, formula) = self.formula(text, true)?;
         if formula.atoms.is_empty() {
-            let shown: String = text.chars().take_while(|c| !c.is_whitespace()).take(12).collect();
-            let d = self.error(Code::Syntax, self.span_of(&text[..shown.len()]), format!("`{shown}` is not a species, compound or `nil`"));
+            let shown: String = text
+                .chars()
+                .take_while(|c| !c.is_whitespace())
+                .take(12)
+                .collect();
+            let d = self.error(
+                Code::Syntax,
+                self.span_of(&text[..shown.len()]),
+                format!("`{shown}` is not a species, compound or `nil`"),
+            );
             d.help = Some(if shown.starts_with(|c: char| c.is_lowercase()) {
                 "element symbols start with a capital letter; the perfect crystal is `nil`".into()
             } else {
@@ -566,7 +759,14 @@ impl<'a> Parser_<'a> {
         }
         let (rest, phase) = phase_tag(rest);
         let span = self.pos(text)..self.pos(rest);
-        Some((rest, Entity::Compound(Compound { formula, phase, span })))
+        Some((
+            rest,
+            Entity::Compound(Compound {
+                formula,
+                phase,
+                span,
+            }),
+        ))
     }
 
     /// Reads element symbols with counts. With `groups`, parenthesised
@@ -579,7 +779,11 @@ impl<'a> Parser_<'a> {
                 let close = matching_close(rest)?;
                 let (inner_rest, inner) = self.formula(&rest[1..close], true)?;
                 if !inner_rest.is_empty() || inner.atoms.is_empty() {
-                    self.error(Code::Syntax, self.span_of(&rest[..=close]), "a parenthesised group must hold a formula");
+                    self.error(
+                        Code::Syntax,
+                        self.span_of(&rest[..=close]),
+                        "a parenthesised group must hold a formula",
+                    );
                     return None;
                 }
                 let (after, count) = self.count(&rest[close + 1..])?;
@@ -589,11 +793,15 @@ impl<'a> Parser_<'a> {
                 rest = after;
                 continue;
             }
-            let Some(first) = rest.chars().next() else { break };
+            let Some(first) = rest.chars().next() else {
+                break;
+            };
             if !first.is_ascii_uppercase() {
                 break;
             }
-            let two = rest.get(..2).filter(|s| s.as_bytes()[1].is_ascii_lowercase());
+            let two = rest
+                .get(..2)
+                .filter(|s| s.as_bytes()[1].is_ascii_lowercase());
             let symbol = match two {
                 Some(s) if elements::by_symbol(s).is_some() => s,
                 Some(s) if elements::by_symbol(&s[..1]).is_none() => {
@@ -620,18 +828,30 @@ impl<'a> Parser_<'a> {
             return match number::parse_decimal(digits) {
                 Ok(q) => Some((rest, q)),
                 Err(e) => {
-                    self.error(Code::Number, self.span_of(digits), format!("count `{digits}`: {e}"));
+                    self.error(
+                        Code::Number,
+                        self.span_of(digits),
+                        format!("count `{digits}`: {e}"),
+                    );
                     None
                 }
             };
         }
-        let subscript: IResult<&str, &str> = take_while1(|c: char| ('₀'..='₉').contains(&c)).parse(text);
+        let subscript: IResult<&str, &str> =
+            take_while1(|c: char| ('₀'..='₉').contains(&c)).parse(text);
         if let Ok((rest, digits)) = subscript {
-            let ascii: String = digits.chars().map(|c| char::from(b'0' + (c as u32 - '₀' as u32) as u8)).collect();
+            let ascii: String = digits
+                .chars()
+                .map(|c| char::from(b'0' + (c as u32 - '₀' as u32) as u8))
+                .collect();
             return match number::parse_decimal(&ascii) {
                 Ok(q) => Some((rest, q)),
                 Err(e) => {
-                    self.error(Code::Number, self.span_of(digits), format!("count `{digits}`: {e}"));
+                    self.error(
+                        Code::Number,
+                        self.span_of(digits),
+                        format!("count `{digits}`: {e}"),
+                    );
                     None
                 }
             };
@@ -663,14 +883,22 @@ fn coefficient(text: &str) -> IResult<&str, Option<&str>> {
         recognize(satisfy(|c| matches!(c, '½' | '⅓' | '⅔' | '¼' | '¾'))),
     ));
     let spacing = take_while(|c: char| c.is_whitespace() || c == '~');
-    let (rest, found) = opt((number, spacing, opt(alt((tag("\\,"), tag("\\;"), tag("\\ ")))), take_while(char::is_whitespace)))
-        .parse(text)?;
+    let (rest, found) = opt((
+        number,
+        spacing,
+        opt(alt((tag("\\,"), tag("\\;"), tag("\\ ")))),
+        take_while(char::is_whitespace),
+    ))
+    .parse(text)?;
     Ok((rest, found.map(|(n, ..)| n)))
 }
 
 fn element_symbol(text: &str) -> IResult<&str, &str> {
-    let two: IResult<&str, &str> =
-        recognize((satisfy(|c| c.is_ascii_uppercase()), satisfy(|c| c.is_ascii_lowercase()))).parse(text);
+    let two: IResult<&str, &str> = recognize((
+        satisfy(|c| c.is_ascii_uppercase()),
+        satisfy(|c| c.is_ascii_lowercase()),
+    ))
+    .parse(text);
     if let Ok((rest, s)) = two {
         if elements::by_symbol(s).is_some() {
             return Ok((rest, s));
@@ -680,12 +908,20 @@ fn element_symbol(text: &str) -> IResult<&str, &str> {
     if elements::by_symbol(s).is_some() {
         Ok((rest, s))
     } else {
-        Err(nom::Err::Error(nom::error::Error::new(text, nom::error::ErrorKind::Tag)))
+        Err(nom::Err::Error(nom::error::Error::new(
+            text,
+            nom::error::ErrorKind::Tag,
+        )))
     }
 }
 
 fn phase_tag(text: &str) -> (&str, Option<Phase>) {
-    for (tag, phase) in [("(g)", Phase::Gas), ("(s)", Phase::Solid), ("(l)", Phase::Liquid), ("(cr)", Phase::Solid)] {
+    for (tag, phase) in [
+        ("(g)", Phase::Gas),
+        ("(s)", Phase::Solid),
+        ("(l)", Phase::Liquid),
+        ("(cr)", Phase::Solid),
+    ] {
         if let Some(rest) = text.strip_prefix(tag) {
             return (rest, Some(phase));
         }
@@ -712,7 +948,10 @@ fn matching_close(text: &str) -> Option<usize> {
 }
 
 fn is_mark_char(c: char) -> bool {
-    matches!(c, '.' | '*' | '•' | '∙' | '·' | '\'' | '′' | '’' | '″' | '‴' | 'x' | 'X' | '×' | '^')
+    matches!(
+        c,
+        '.' | '*' | '•' | '∙' | '·' | '\'' | '′' | '’' | '″' | '‴' | 'x' | 'X' | '×' | '^'
+    )
 }
 
 fn is_mark_start(c: char) -> bool {
@@ -721,8 +960,15 @@ fn is_mark_start(c: char) -> bool {
 
 /// One charge mark at the start of `text`: (bytes, value, style).
 fn mark_at(text: &str) -> Option<(usize, i32, MarkStyle)> {
-    for (macro_name, value) in [("\\bullet", 1), ("\\cdot", 1), ("\\prime", -1), ("\\times", 0)] {
-        if text.starts_with(macro_name) && !text[macro_name.len()..].starts_with(|c: char| c.is_ascii_alphabetic()) {
+    for (macro_name, value) in [
+        ("\\bullet", 1),
+        ("\\cdot", 1),
+        ("\\prime", -1),
+        ("\\times", 0),
+    ] {
+        if text.starts_with(macro_name)
+            && !text[macro_name.len()..].starts_with(|c: char| c.is_ascii_alphabetic())
+        {
             return Some((macro_name.len(), value, MarkStyle::Latex));
         }
     }
@@ -745,7 +991,9 @@ fn mark_at(text: &str) -> Option<(usize, i32, MarkStyle)> {
 fn is_electronic_start(text: &str) -> bool {
     let mut chars = text.chars();
     matches!(chars.next(), Some('e' | 'h'))
-        && chars.next().is_none_or(|c| is_mark_start(c) || c == '_' || c == '{' || c.is_whitespace() || c == ')' || c == '}')
+        && chars.next().is_none_or(|c| {
+            is_mark_start(c) || c == '_' || c == '{' || c.is_whitespace() || c == ')' || c == '}'
+        })
 }
 
 fn is_electronic_token(token: &str) -> bool {

@@ -2,7 +2,10 @@
 //! a reader expects) and LaTeX math (what a manuscript needs). The ASCII and
 //! Unicode forms parse back to the same species.
 
-use super::{Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term, VacancySpelling};
+use super::{
+    Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term,
+    VacancySpelling,
+};
 use crate::elements;
 use crate::number::{self, Q};
 use std::fmt::Write;
@@ -53,8 +56,13 @@ fn decimal_text(q: Q) -> String {
     if d != 1 || places > 18 {
         return number::to_plain(q);
     }
-    let Some(scale) = 10i64.checked_pow(places) else { return number::to_plain(q) };
-    let Some(scaled) = number::mul(q, Q::from_integer(scale)).ok().filter(|s| s.is_integer()) else {
+    let Some(scale) = 10i64.checked_pow(places) else {
+        return number::to_plain(q);
+    };
+    let Some(scaled) = number::mul(q, Q::from_integer(scale))
+        .ok()
+        .filter(|s| s.is_integer())
+    else {
         return number::to_plain(q);
     };
     let digits = scaled.numer().abs().to_string();
@@ -107,10 +115,22 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
             }
             out.push('}');
         }
-        (Site::Lattice { element, label: Some(label) }, _) => {
+        (
+            Site::Lattice {
+                element,
+                label: Some(label),
+            },
+            _,
+        ) => {
             let _ = write!(out, "_{{{}:{label}}}", symbol(*element));
         }
-        (Site::Lattice { element, label: None }, _) => {
+        (
+            Site::Lattice {
+                element,
+                label: None,
+            },
+            _,
+        ) => {
             let _ = write!(out, "_{}", symbol(*element));
         }
     }

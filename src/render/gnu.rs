@@ -15,7 +15,15 @@ impl<W: Write> GnuSink<W> {
     }
 
     fn write(&mut self, source: &str, d: &Diagnostic) -> io::Result<()> {
-        write!(self.out, "{source}:{}:{}: {}: {} [{}]", d.line, d.column, d.severity.as_str(), d.message, d.code)?;
+        write!(
+            self.out,
+            "{source}:{}:{}: {}: {} [{}]",
+            d.line,
+            d.column,
+            d.severity.as_str(),
+            d.message,
+            d.code
+        )?;
         if let Some(help) = &d.help {
             write!(self.out, " (help: {help})")?;
         }
@@ -31,7 +39,12 @@ impl<W: Write> Sink for GnuSink<W> {
         Ok(())
     }
 
-    fn line_problem(&mut self, source: &str, _line_text: &str, diagnostic: &Diagnostic) -> io::Result<()> {
+    fn line_problem(
+        &mut self,
+        source: &str,
+        _line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
         self.write(source, diagnostic)
     }
 

@@ -21,31 +21,65 @@ pub struct HumanSink<W: Write> {
 
 impl<W: Write> HumanSink<W> {
     pub fn new(out: W, palette: Palette) -> Self {
-        HumanSink { out, palette, verbose: false, quiet: false }
+        HumanSink {
+            out,
+            palette,
+            verbose: false,
+            quiet: false,
+        }
     }
 }
 
 /// Writes one diagnostic with its source line and underline.
-pub fn write_diagnostic(out: &mut dyn Write, palette: Palette, source: &str, line_text: &str, d: &Diagnostic) -> io::Result<()> {
+pub fn write_diagnostic(
+    out: &mut dyn Write,
+    palette: Palette,
+    source: &str,
+    line_text: &str,
+    d: &Diagnostic,
+) -> io::Result<()> {
     let p = palette;
     let head = format!("{}[{}]", d.severity.as_str(), d.code);
-    writeln!(out, "{}: {}", p.severity(d.severity, &head), p.strong(&d.message))?;
+    writeln!(
+        out,
+        "{}: {}",
+        p.severity(d.severity, &head),
+        p.strong(&d.message)
+    )?;
     if d.line == 0 {
         writeln!(out, "  {} {source}", p.frame("at"))?;
         return help(out, p, d);
     }
     let number = d.line.to_string();
     let gutter = " ".repeat(number.len());
-    writeln!(out, "{gutter}{} {source}:{}:{}", p.frame("-->"), d.line, d.column)?;
+    writeln!(
+        out,
+        "{gutter}{} {source}:{}:{}",
+        p.frame("-->"),
+        d.line,
+        d.column
+    )?;
     writeln!(out, "{gutter} {}", p.frame("|"))?;
     writeln!(out, "{} {} {}", p.frame(&number), p.frame("|"), line_text)?;
     let start = d.span.start.min(line_text.len());
     let end = d.span.end.clamp(start, line_text.len());
     let lead = line_text.get(..start).map_or(0, |s| s.chars().count());
-    let width = line_text.get(start..end).map_or(1, |s| s.chars().count()).max(1);
+    let width = line_text
+        .get(start..end)
+        .map_or(1, |s| s.chars().count())
+        .max(1);
     let marks = p.severity(d.severity, &"^".repeat(width));
-    let label = d.label.as_deref().map(|l| format!(" {}", p.severity(d.severity, l))).unwrap_or_default();
-    writeln!(out, "{gutter} {} {}{marks}{label}", p.frame("|"), " ".repeat(lead))?;
+    let label = d
+        .label
+        .as_deref()
+        .map(|l| format!(" {}", p.severity(d.severity, l)))
+        .unwrap_or_default();
+    writeln!(
+        out,
+        "{gutter} {} {}{marks}{label}",
+        p.frame("|"),
+        " ".repeat(lead)
+    )?;
     help(out, p, d)
 }
 
@@ -57,22 +91,73 @@ fn help(out: &mut dyn Write, p: Palette, d: &Diagnostic) -> io::Result<()> {
 }
 
 fn signed(q: Q) -> String {
-    if q < Q::from_integer(0) { format!("−{}", number::to_plain(-q)) } else { number::to_plain(q) }
+    if q < Q::from_integer(0) {
+        format!("−{}", number::to_plain(-q))
+    } else {
+        number::to_plain(q)
+    }
 }
 
 /// The numbers behind a failing reaction's balances, one row each.
-pub fn write_table(out: &mut dyn Write, p: Palette, table: &BalanceTable, host_ratio: Option<&str>, site_ok: Option<bool>) -> io::Result<()> {
+pub fn write_table(
+    out: &mut dyn Write,
+    p: Palette,
+    table: &BalanceTable,
+    host_ratio: Option<&str>,
+    site_ok: Option<bool>,
+) -> io::Result<()> {
     let mark = |ok: bool| if ok { p.good("✓") } else { p.bad("✗") };
-    writeln!(out, "  {:<14} {:>8} {:>8}", p.strong("balance"), "left", "right")?;
+    writeln!(
+        out,
+        "  {:<14} {:>8} {:>8}",
+        p.strong("balance"),
+        "left",
+        "right"
+    )?;
     for (z, l, r) in &table.elements {
         let symbol = elements::by_z(*z).map_or("?", |e| e.symbol);
-        writeln!(out, "  {:<14} {:>8} {:>8}  {}", format!("mass {symbol}"), signed(*l), signed(*r), mark(l == r))?;
+        writeln!(
+            out,
+            "  {:<14} {:>8} {:>8}  {}",
+            format!("mass {symbol}"),
+            signed(*l),
+            signed(*r),
+            mark(l == r)
+        )?;
     }
     let (l, r) = table.charge;
-    writeln!(out, "  {:<14} {:>8} {:>8}  {}", "charge", signed(l), signed(r), mark(l == r))?;
+    writeln!(
+        out,
+        "  {:<14} {:>8} {:>8}  {}",
+        "charge",
+        signed(l),
+        signed(r),
+        mark(l == r)
+    )?;
     if let Some(ok) = site_ok {
-        let changes: Vec<String> = table.sites.iter().map(|(n, _, l, r)| format!("{n} {}", if r >= l { format!("+{}", number::to_plain(r - l)) } else { signed(r - l) })).collect();
-        writeln!(out, "  {:<14} {:>17}  {}  net {}; host {}", "sites", "", mark(ok), changes.join(", "), host_ratio.unwrap_or(""))?;
+        let changes: Vec<String> = table
+            .sites
+            .iter()
+            .map(|(n, _, l, r)| {
+                format!(
+                    "{n} {}",
+                    if r >= l {
+                        format!("+{}", number::to_plain(r - l))
+                    } else {
+                        signed(r - l)
+                    }
+                )
+            })
+            .collect();
+        writeln!(
+            out,
+            "  {:<14} {:>17}  {}  net {}; host {}",
+            "sites",
+            "",
+            mark(ok),
+            changes.join(", "),
+            host_ratio.unwrap_or("")
+        )?;
     }
     Ok(())
 }
@@ -84,24 +169,48 @@ impl<W: Write> Sink for HumanSink<W> {
         }
         if report.diagnostics.is_empty() {
             if self.verbose {
-                writeln!(self.out, "{} {}:{}  {}", self.palette.good("ok"), report.source, report.line, report.text)?;
+                writeln!(
+                    self.out,
+                    "{} {}:{}  {}",
+                    self.palette.good("ok"),
+                    report.source,
+                    report.line,
+                    report.text
+                )?;
             }
             return Ok(());
         }
         for d in &report.diagnostics {
-            write_diagnostic(&mut self.out, self.palette, report.source, report.line_text, d)?;
+            write_diagnostic(
+                &mut self.out,
+                self.palette,
+                report.source,
+                report.line_text,
+                d,
+            )?;
         }
         if let Some(verdict) = &report.verdict {
             let b = verdict.balance;
             if !b.mass || !b.charge || b.site == Some(false) {
                 let ratio = report.host.map(|h| h.ratio_text());
-                write_table(&mut self.out, self.palette, &verdict.table, ratio.as_deref(), b.site)?;
+                write_table(
+                    &mut self.out,
+                    self.palette,
+                    &verdict.table,
+                    ratio.as_deref(),
+                    b.site,
+                )?;
             }
         }
         writeln!(self.out)
     }
 
-    fn line_problem(&mut self, source: &str, line_text: &str, diagnostic: &Diagnostic) -> io::Result<()> {
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
         if self.quiet {
             return Ok(());
         }
@@ -111,12 +220,25 @@ impl<W: Write> Sink for HumanSink<W> {
 
     fn finish(&mut self, s: &Summary) -> io::Result<()> {
         let p = self.palette;
-        let plural = |n: u64, word: &str| if n == 1 { format!("{n} {word}") } else { format!("{n} {word}s") };
+        let plural = |n: u64, word: &str| {
+            if n == 1 {
+                format!("{n} {word}")
+            } else {
+                format!("{n} {word}s")
+            }
+        };
         let balanced = s.reactions - s.failed;
-        let mut line = format!("{} in {}: ", plural(s.reactions, "reaction"), plural(s.sources, "source"));
+        let mut line = format!(
+            "{} in {}: ",
+            plural(s.reactions, "reaction"),
+            plural(s.sources, "source")
+        );
         line.push_str(&p.good(&format!("{balanced} pass")));
         if s.failed > 0 {
-            line.push_str(&format!(", {}", p.severity(Severity::Error, &format!("{} fail", s.failed))));
+            line.push_str(&format!(
+                ", {}",
+                p.severity(Severity::Error, &format!("{} fail", s.failed))
+            ));
         }
         let mut counts = Vec::new();
         if s.errors > 0 {

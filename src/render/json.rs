@@ -62,7 +62,11 @@ pub struct JsonSink<W: Write> {
 
 impl<W: Write> JsonSink<W> {
     pub fn new(out: W) -> Self {
-        JsonSink { out, reactions: 0, problems: Vec::new() }
+        JsonSink {
+            out,
+            reactions: 0,
+            problems: Vec::new(),
+        }
     }
 }
 
@@ -72,7 +76,11 @@ fn to_io(e: serde_json::Error) -> io::Error {
 
 impl<W: Write> Sink for JsonSink<W> {
     fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()> {
-        self.out.write_all(if self.reactions == 0 { b"{\"reactions\": [\n  " } else { b",\n  " })?;
+        self.out.write_all(if self.reactions == 0 {
+            b"{\"reactions\": [\n  "
+        } else {
+            b",\n  "
+        })?;
         self.reactions += 1;
         let record = JsonReaction {
             source: report.source,
@@ -80,14 +88,28 @@ impl<W: Write> Sink for JsonSink<W> {
             label: report.label,
             text: report.text,
             ok: report.ok(),
-            balance: report.verdict.as_ref().map(|v| JsonBalance { mass: v.balance.mass, charge: v.balance.charge, site: v.balance.site }),
-            diagnostics: report.diagnostics.iter().map(|d| JsonDiagnostic::from(d, None)).collect(),
+            balance: report.verdict.as_ref().map(|v| JsonBalance {
+                mass: v.balance.mass,
+                charge: v.balance.charge,
+                site: v.balance.site,
+            }),
+            diagnostics: report
+                .diagnostics
+                .iter()
+                .map(|d| JsonDiagnostic::from(d, None))
+                .collect(),
         };
         serde_json::to_writer(&mut self.out, &record).map_err(to_io)
     }
 
-    fn line_problem(&mut self, source: &str, _line_text: &str, diagnostic: &Diagnostic) -> io::Result<()> {
-        let value = serde_json::to_value(JsonDiagnostic::from(diagnostic, Some(source))).map_err(to_io)?;
+    fn line_problem(
+        &mut self,
+        source: &str,
+        _line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
+        let value =
+            serde_json::to_value(JsonDiagnostic::from(diagnostic, Some(source))).map_err(to_io)?;
         self.problems.push(value);
         Ok(())
     }

@@ -27,7 +27,11 @@ impl Palette {
         // colored consults a process-wide switch; we decide colour ourselves.
         colored::control::set_override(true);
         let painted = text.color(color);
-        if bold { painted.bold().to_string() } else { painted.to_string() }
+        if bold {
+            painted.bold().to_string()
+        } else {
+            painted.to_string()
+        }
     }
 
     pub fn severity(self, severity: Severity, text: &str) -> String {

@@ -120,14 +120,23 @@ pub struct SarifSink<W: Write> {
 
 impl<W: Write> SarifSink<W> {
     pub fn new(out: W) -> Self {
-        SarifSink { out, results: Vec::new() }
+        SarifSink {
+            out,
+            results: Vec::new(),
+        }
     }
 
     fn add(&mut self, source: &str, line_text: &str, d: &Diagnostic) {
         let rule_index = Code::ALL.iter().position(|c| *c == d.code).unwrap_or(0);
         let region = (d.line > 0).then(|| {
-            let width = line_text.get(d.span.clone()).map_or(1, |s| s.chars().count().max(1));
-            Region { start_line: d.line, start_column: d.column.max(1), end_column: d.column.max(1) + u32::try_from(width).unwrap_or(1) }
+            let width = line_text
+                .get(d.span.clone())
+                .map_or(1, |s| s.chars().count().max(1));
+            Region {
+                start_line: d.line,
+                start_column: d.column.max(1),
+                end_column: d.column.max(1) + u32::try_from(width).unwrap_or(1),
+            }
         });
         let mut message = d.message.clone();
         if let Some(help) = &d.help {
@@ -140,7 +149,12 @@ impl<W: Write> SarifSink<W> {
             level: level(d.severity),
             message: Text { text: message },
             locations: vec![Location {
-                physical_location: PhysicalLocation { artifact_location: ArtifactLocation { uri: source.replace('\\', "/") }, region },
+                physical_location: PhysicalLocation {
+                    artifact_location: ArtifactLocation {
+                        uri: source.replace('\\', "/"),
+                    },
+                    region,
+                },
             }],
         });
     }
@@ -154,7 +168,12 @@ impl<W: Write> Sink for SarifSink<W> {
         Ok(())
     }
 
-    fn line_problem(&mut self, source: &str, line_text: &str, diagnostic: &Diagnostic) -> io::Result<()> {
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
         self.add(source, line_text, diagnostic);
         Ok(())
     }
@@ -165,9 +184,15 @@ impl<W: Write> Sink for SarifSink<W> {
             .map(|c| Rule {
                 id: c.as_str(),
                 name: rule_name(*c),
-                short_description: Text { text: c.title().to_string() },
-                full_description: Text { text: c.explanation().to_string() },
-                default_configuration: Configuration { level: level(c.default_severity()) },
+                short_description: Text {
+                    text: c.title().to_string(),
+                },
+                full_description: Text {
+                    text: c.explanation().to_string(),
+                },
+                default_configuration: Configuration {
+                    level: level(c.default_severity()),
+                },
             })
             .collect();
         let log = Log {
