@@ -322,7 +322,8 @@ impl<'a> Parser_<'a> {
         let first = remaining.chars().next().unwrap_or(' ');
         let d = self.error(Code::Syntax, span, format!("unexpected `{remaining}`"));
         if is_mark_char(first) {
-            if let Entity::Compound(_) = entity {
+            if let Entity::Compound(c) = entity {
+                d.span.start = c.span.start;
                 d.code = Code::MissingSite;
                 d.message = "a charged species needs a site subscript".into();
                 d.help = Some("write the site after `_`, e.g. `V_O..`, `Y_Zr'`, `O_i''`".into());
@@ -446,7 +447,7 @@ impl<'a> Parser_<'a> {
                 let name = if electron { "an electron" } else { "a hole" };
                 self.error(
                     Code::ElectronicSpecies,
-                    self.span_of(&rest[..site_end]),
+                    self.pos(start)..self.pos(rest) + site_end,
                     format!("{name} carries no site"),
                 )
                 .help = Some(format!(
@@ -555,9 +556,16 @@ impl<'a> Parser_<'a> {
         };
         let result: IResult<&str, &str> = alt((tag("i"), element_symbol)).parse(inner);
         let Ok((rest, name)) = result else {
+            if inner.starts_with(|c: char| c.is_ascii_uppercase()) {
+                let len = 1 + inner[1..]
+                    .find(|c: char| !c.is_ascii_lowercase())
+                    .unwrap_or(inner.len() - 1);
+                self.unknown_element(&inner[..len]);
+                return None;
+            }
             let shown: String = inner
                 .chars()
-                .take_while(|c| !c.is_whitespace())
+                .take_while(|c| c.is_alphanumeric())
                 .take(4)
                 .collect();
             let span = self.span_of(&inner[..shown.len()]);
