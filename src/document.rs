@@ -70,9 +70,11 @@ pub fn classify(line: &str) -> Line {
         };
     }
     if let Some(label_len) = label_len(trimmed) {
+        let after = &trimmed[label_len + 1..];
+        let gap = after.len() - after.trim_start().len();
         return Line::Reaction {
             label: Some(start..start + label_len),
-            reaction: start + label_len + 1..end,
+            reaction: start + label_len + 1 + gap..end,
         };
     }
     Line::Reaction {
@@ -124,7 +126,7 @@ mod tests {
             classify("red: O_O -> V_O.."),
             Line::Reaction {
                 label: Some(0..3),
-                reaction: 4..17
+                reaction: 5..17
             }
         );
         assert_eq!(

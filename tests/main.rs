@@ -1,0 +1,7 @@
+//! The one integration-test binary: every module runs the real `lacuna`
+//! binary or the public library against the project's documents.
+
+mod check_cli;
+mod docs;
+mod properties;
+mod support;
