@@ -47,7 +47,7 @@ pub enum ColorChoice {
 
 impl ColorChoice {
     /// Decides colour for standard output: `auto` colours a terminal unless
-    /// NO_COLOR is set (https://no-color.org).
+    /// NO_COLOR is set.
     pub fn palette(self) -> Palette {
         let enabled = match self {
             ColorChoice::Always => true,
