@@ -8,7 +8,7 @@ use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::elements;
 use crate::host::{Host, SiteLookup};
 use crate::notation::{
-    Entity, Occupant, Reaction, Site, Span, Species, SpeciesKey, Style, Term, render_species,
+    Entity, Occupant, Reaction, Site, Span, Species, Style, Term, render_species,
 };
 use crate::number::{self, Q};
 
@@ -27,8 +27,8 @@ pub struct BalanceTable {
     /// (atomic number, left, right) in order of first appearance.
     pub elements: Vec<(u8, Q, Q)>,
     pub charge: (Q, Q),
-    /// (sublattice name, host sites per formula unit, left, right).
-    pub sites: Vec<(String, Q, Q, Q)>,
+    /// (index into the host's sublattices, sites per formula unit, left, right).
+    pub sites: Vec<(usize, Q, Q, Q)>,
 }
 
 /// The outcome of checking one reaction.
@@ -138,7 +138,7 @@ fn mentions_vanadium(reaction: &Reaction) -> bool {
 }
 
 /// Net site changes must be proportional to the host's site counts.
-fn site_ratio_holds(sites: &[(String, Q, Q, Q)]) -> bool {
+fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> bool {
     let Some((_, count0, l0, r0)) = sites.first() else {
         return true;
     };
@@ -205,7 +205,6 @@ impl Checker<'_> {
     }
 
     fn validate_species(&mut self, s: &Species) {
-        let shown = render_species(s, Style::Unicode);
         match &s.occupant {
             Occupant::Electron | Occupant::Hole => {
                 let (want, name, mark) = if s.occupant == Occupant::Electron {
@@ -242,7 +241,7 @@ impl Checker<'_> {
                 self.push(
                     Diagnostic::new(Code::AmbiguousV, s.span.start..s.span.start + 1, "`V` could be vanadium or a vacancy here: vanadium occurs in this host or reaction")
                         .with_label("vanadium or vacancy?")
-                        .with_help(format!("for a vacancy write `Vac{rest}` or `□{rest}`; for vanadium write `el:V{rest}`", rest = &shown[1..])),
+                        .with_help(format!("for a vacancy write `Vac{rest}` or `□{rest}`; for vanadium write `el:V{rest}`", rest = &render_species(s, Style::Unicode)[1..])),
                 );
                 return;
             }
@@ -267,10 +266,10 @@ impl Checker<'_> {
         };
         let effective = Q::from_integer(i64::from(s.charge));
         match &s.occupant {
-            Occupant::Vacancy(_) => self.vacancy_range(s, site_charge, &shown),
+            Occupant::Vacancy(_) => self.vacancy_range(s, site_charge),
             Occupant::Atoms { formula, .. } => {
                 if let Some(z) = formula.single_element() {
-                    self.oxidation_state(s, z, effective + site_charge, site_charge, &shown);
+                    self.oxidation_state(s, z, effective + site_charge, site_charge);
                 }
             }
             _ => {}
@@ -333,7 +332,7 @@ impl Checker<'_> {
         }
     }
 
-    fn vacancy_range(&mut self, s: &Species, site_charge: Q, shown: &str) {
+    fn vacancy_range(&mut self, s: &Species, site_charge: Q) {
         let q = Q::from_integer(i64::from(s.charge));
         let zero = Q::from_integer(0);
         let limit = -site_charge;
@@ -345,6 +344,7 @@ impl Checker<'_> {
         if inside {
             return;
         }
+        let shown = render_species(s, Style::Unicode);
         let full = limit.trunc();
         let mut fixed = s.clone();
         fixed.charge = i32::try_from(*full.numer()).unwrap_or(0);
@@ -364,7 +364,7 @@ impl Checker<'_> {
         );
     }
 
-    fn oxidation_state(&mut self, s: &Species, z: u8, real: Q, site_charge: Q, shown: &str) {
+    fn oxidation_state(&mut self, s: &Species, z: u8, real: Q, site_charge: Q) {
         let Some(element) = elements::by_z(z) else {
             return;
         };
@@ -376,7 +376,8 @@ impl Checker<'_> {
                 Code::OxidationState,
                 s.span.clone(),
                 format!(
-                    "{shown} implies an impossible charge of {}",
+                    "{} implies an impossible charge of {}",
+                    render_species(s, Style::Unicode),
                     signed_text(real)
                 ),
             ));
@@ -389,6 +390,7 @@ impl Checker<'_> {
         if element.is_common_state(state) || (state == 0 && (interstitial || elemental_host)) {
             return;
         }
+        let shown = render_species(s, Style::Unicode);
         let ion = ion_text(element.symbol, state);
         let suggestion = element
             .common_states
@@ -511,13 +513,7 @@ impl Checker<'_> {
                 if let (Some(Site::Lattice { element, label }), Some(host)) = (&s.site, self.host) {
                     if let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) {
                         if table.sites.is_empty() {
-                            table.sites = host
-                                .sublattices
-                                .iter()
-                                .map(|x| {
-                                    (x.name(), x.count, Q::from_integer(0), Q::from_integer(0))
-                                })
-                                .collect();
+                            table.sites = site_rows(host);
                         }
                         let row = &mut table.sites[i];
                         if right {
@@ -531,11 +527,7 @@ impl Checker<'_> {
         }
         if table.sites.is_empty() {
             if let Some(host) = self.host {
-                table.sites = host
-                    .sublattices
-                    .iter()
-                    .map(|x| (x.name(), x.count, Q::from_integer(0), Q::from_integer(0)))
-                    .collect();
+                table.sites = site_rows(host);
             }
         }
         Ok(())
@@ -673,7 +665,7 @@ impl Checker<'_> {
         let changes: Vec<String> = table
             .sites
             .iter()
-            .map(|(name, _, l, r)| format!("{name} {}", change_text(r - l)))
+            .map(|(i, _, l, r)| format!("{} {}", site_name(host, *i), change_text(r - l)))
             .collect();
         let mut message = format!(
             "sites break the {} ratio {}: net change {}",
@@ -682,13 +674,14 @@ impl Checker<'_> {
             changes.join(", ")
         );
         // Say what the other sublattices would need, scaled to the first that changed.
-        if let Some((name, count, l, r)) = table.sites.iter().find(|(_, _, l, r)| l != r) {
+        if let Some((first, count, l, r)) = table.sites.iter().find(|(_, _, l, r)| l != r) {
+            let name = site_name(host, *first);
             let lambda = (r - l) / count;
             let needed: Vec<String> = table
                 .sites
                 .iter()
-                .filter(|(n, ..)| n != name)
-                .map(|(n, c, ..)| format!("{n} {}", change_text(lambda * c)))
+                .filter(|(n, ..)| n != first)
+                .map(|(n, c, ..)| format!("{} {}", site_name(host, *n), change_text(lambda * c)))
                 .collect();
             message.push_str(&format!(
                 " (for {name} {} the host needs {})",
@@ -703,22 +696,19 @@ impl Checker<'_> {
     }
 
     fn same_on_both_sides(&mut self, reaction: &Reaction) {
-        let keys = |terms: &[Term]| -> Vec<(SpeciesKey, Span)> {
-            terms
+        for right in &reaction.right {
+            let Entity::Species(r) = &right.entity else {
+                continue;
+            };
+            let repeated = reaction
+                .left
                 .iter()
-                .filter_map(|t| match &t.entity {
-                    Entity::Species(s) => Some((s.key(), s.span.clone())),
-                    _ => None,
-                })
-                .collect()
-        };
-        let left = keys(&reaction.left);
-        for (key, span) in keys(&reaction.right) {
-            if left.iter().any(|(k, _)| *k == key) {
+                .any(|left| matches!(&left.entity, Entity::Species(l) if l.same_as(r)));
+            if repeated {
                 self.push(
                     Diagnostic::new(
                         Code::SameOnBothSides,
-                        span,
+                        r.span.clone(),
                         "this species appears on both sides",
                     )
                     .with_help("cancel it from both sides, or check for a typo"),
@@ -726,6 +716,22 @@ impl Checker<'_> {
             }
         }
     }
+}
+
+fn site_rows(host: &Host) -> Vec<(usize, Q, Q, Q)> {
+    let zero = Q::from_integer(0);
+    host.sublattices
+        .iter()
+        .enumerate()
+        .map(|(i, x)| (i, x.count, zero, zero))
+        .collect()
+}
+
+/// The name of sublattice `i` of `host` (`O`, `Fe:A`).
+pub fn site_name(host: &Host, i: usize) -> String {
+    host.sublattices
+        .get(i)
+        .map_or_else(|| "?".to_string(), |x| x.name())
 }
 
 fn site_span(s: &Species) -> Span {

@@ -25,6 +25,12 @@ impl std::error::Error for Overflow {}
 
 /// `a + b`, or `Overflow`.
 pub fn add(a: Q, b: Q) -> Result<Q, Overflow> {
+    // Integers are the common case; skip the gcd work for them.
+    if a.is_integer() && b.is_integer() {
+        return i64::checked_add(*a.numer(), *b.numer())
+            .map(Q::from_integer)
+            .ok_or(Overflow);
+    }
     a.checked_add(&b).ok_or(Overflow)
 }
 
@@ -35,6 +41,11 @@ pub fn sub(a: Q, b: Q) -> Result<Q, Overflow> {
 
 /// `a * b`, or `Overflow`.
 pub fn mul(a: Q, b: Q) -> Result<Q, Overflow> {
+    if a.is_integer() && b.is_integer() {
+        return i64::checked_mul(*a.numer(), *b.numer())
+            .map(Q::from_integer)
+            .ok_or(Overflow);
+    }
     a.checked_mul(&b).ok_or(Overflow)
 }
 

@@ -55,56 +55,50 @@ pub struct Element {
     pub radii: &'static [IonicRadius],
 }
 
-/// Indices into [`ELEMENTS`] sorted by symbol (byte order), for binary search.
-const BY_SYMBOL: [u8; 118] = symbol_index();
-
-const fn str_less(a: &str, b: &str) -> bool {
-    let (a, b) = (a.as_bytes(), b.as_bytes());
-    let mut i = 0;
-    while i < a.len() && i < b.len() {
-        if a[i] != b[i] {
-            return a[i] < b[i];
-        }
-        i += 1;
-    }
-    a.len() < b.len()
-}
-
-const fn symbol_index() -> [u8; 118] {
-    let mut index = [0u8; 118];
-    let mut i = 0;
-    while i < 118 {
-        index[i] = i as u8;
-        i += 1;
-    }
-    // Insertion sort; runs once, at compile time.
-    let mut i = 1;
-    while i < 118 {
-        let mut j = i;
-        while j > 0
-            && str_less(
-                ELEMENTS[index[j] as usize].symbol,
-                ELEMENTS[index[j - 1] as usize].symbol,
-            )
-        {
-            let t = index[j];
-            index[j] = index[j - 1];
-            index[j - 1] = t;
-            j -= 1;
-        }
-        i += 1;
-    }
-    index
-}
-
 /// The element with this symbol; case-sensitive (`"Co"` is cobalt, `"CO"` and
 /// `"co"` are nothing).
 pub fn by_symbol(symbol: &str) -> Option<&'static Element> {
-    BY_SYMBOL
-        .binary_search_by(|&i| ELEMENTS[usize::from(i)].symbol.cmp(symbol))
-        .ok()
-        .map(|pos| &ELEMENTS[usize::from(BY_SYMBOL[pos])])
+    // The parser asks for every letter pair it meets, so this is a direct
+    // table lookup on the two bytes rather than a search.
+    let slot = symbol_slot(symbol.as_bytes())?;
+    let z = BY_LETTERS[slot];
+    if z == 0 {
+        None
+    } else {
+        ELEMENTS.get(usize::from(z) - 1)
+    }
 }
+
+/// Slot of a one- or two-letter symbol in `BY_LETTERS`: capital × (none | small).
+const fn symbol_slot(bytes: &[u8]) -> Option<usize> {
+    let (first, second) = match bytes {
+        [a] => (*a, None),
+        [a, b] => (*a, Some(*b)),
+        _ => return None,
+    };
+    if !first.is_ascii_uppercase() {
+        return None;
+    }
+    let column = match second {
+        None => 0,
+        Some(b) if b.is_ascii_lowercase() => (b - b'a') as usize + 1,
+        Some(_) => return None,
+    };
+    Some((first - b'A') as usize * 27 + column)
+}
+
+/// Atomic number by symbol slot; 0 where no element has that symbol.
+static BY_LETTERS: [u8; 26 * 27] = {
+    let mut table = [0u8; 26 * 27];
+    let mut i = 0;
+    while i < ELEMENTS.len() {
+        if let Some(slot) = symbol_slot(ELEMENTS[i].symbol.as_bytes()) {
+            table[slot] = ELEMENTS[i].z;
+        }
+        i += 1;
+    }
+    table
+};
 
 /// The element with atomic number `z` (1 to 118).
 pub fn by_z(z: u8) -> Option<&'static Element> {

@@ -121,6 +121,16 @@ pub struct SpeciesKey {
 }
 
 impl Species {
+    /// Whether two species are the same defect, however they were spelled.
+    pub fn same_as(&self, other: &Species) -> bool {
+        let occupants = match (&self.occupant, &other.occupant) {
+            (Occupant::Vacancy(_), Occupant::Vacancy(_)) => true,
+            (Occupant::Atoms { formula: a, .. }, Occupant::Atoms { formula: b, .. }) => a == b,
+            (a, b) => a == b,
+        };
+        occupants && self.site == other.site && self.charge == other.charge
+    }
+
     pub fn key(&self) -> SpeciesKey {
         let occupant = match &self.occupant {
             Occupant::Vacancy(_) => Occupant::Vacancy(VacancySpelling::Bare),

@@ -104,6 +104,13 @@ fn trim_span(src: &str, span: Span) -> Span {
 /// Finds an arrow at the start of `s`: its length and kind. `\xrightarrow`
 /// takes an optional `[..]` and a `{..}` argument (the host over the arrow).
 fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
+    // Most characters cannot start an arrow: reject them on the first byte.
+    if !matches!(
+        s.as_bytes().first(),
+        Some(b'\\' | b'<' | b'-' | b'=' | 0xE2)
+    ) {
+        return None;
+    }
     if let Some(rest) = s.strip_prefix("\\xrightarrow") {
         let mut len = "\\xrightarrow".len();
         let mut rest = rest;
@@ -155,10 +162,14 @@ impl<'a> Parser_<'a> {
         let mut ok = true;
         let mut plus_left: Vec<usize> = Vec::new();
         let mut plus_right: Vec<usize> = Vec::new();
-        let mut chars = text.char_indices().peekable();
-        while let Some((i, c)) = chars.next() {
+        // Bytes, not chars: every character that matters here is ASCII or
+        // starts with a lead byte, so each hit is on a character boundary.
+        let bytes = text.as_bytes();
+        let mut i = 0;
+        while let Some(&byte) = bytes.get(i) {
             let at = within.start + i;
-            if stack.is_empty() {
+            let c = char::from(byte);
+            if stack.is_empty() && matches!(byte, b'\\' | b'<' | b'-' | b'=' | 0xE2) {
                 if let Some((len, kind)) = arrow_at(&text[i..]) {
                     if let Some((first, _)) = &arrow {
                         let first_col = crate::diagnostic::column_of(self.src, first.start);
@@ -174,9 +185,7 @@ impl<'a> Parser_<'a> {
                     } else {
                         arrow = Some((at..at + len, kind));
                     }
-                    while chars.peek().is_some_and(|(j, _)| *j < i + len) {
-                        chars.next();
-                    }
+                    i += len;
                     continue;
                 }
             }
@@ -207,6 +216,7 @@ impl<'a> Parser_<'a> {
                 }
                 _ => {}
             }
+            i += 1;
         }
         for (open, at) in stack.drain(..) {
             self.error(

@@ -3,10 +3,11 @@
 //! reaction, and one summary line.
 
 use super::Palette;
-use crate::check::BalanceTable;
+use crate::check::{BalanceTable, site_name};
 use crate::diagnostic::{Diagnostic, Severity};
 use crate::elements;
 use crate::engine::{ReactionReport, Sink, Summary};
+use crate::host::Host;
 use crate::number::{self, Q};
 use std::io::{self, Write};
 
@@ -103,7 +104,7 @@ pub fn write_table(
     out: &mut dyn Write,
     p: Palette,
     table: &BalanceTable,
-    host_ratio: Option<&str>,
+    host: Option<&Host>,
     site_ok: Option<bool>,
 ) -> io::Result<()> {
     let mark = |ok: bool| if ok { p.good("✓") } else { p.bad("✗") };
@@ -134,13 +135,14 @@ pub fn write_table(
         signed(r),
         mark(l == r)
     )?;
-    if let Some(ok) = site_ok {
+    if let (Some(ok), Some(host)) = (site_ok, host) {
         let changes: Vec<String> = table
             .sites
             .iter()
             .map(|(n, _, l, r)| {
                 format!(
-                    "{n} {}",
+                    "{} {}",
+                    site_name(host, *n),
                     if r >= l {
                         format!("+{}", number::to_plain(r - l))
                     } else {
@@ -156,7 +158,7 @@ pub fn write_table(
             "",
             mark(ok),
             changes.join(", "),
-            host_ratio.unwrap_or("")
+            host.ratio_text()
         )?;
     }
     Ok(())
@@ -192,12 +194,11 @@ impl<W: Write> Sink for HumanSink<W> {
         if let Some(verdict) = &report.verdict {
             let b = verdict.balance;
             if !b.mass || !b.charge || b.site == Some(false) {
-                let ratio = report.host.map(|h| h.ratio_text());
                 write_table(
                     &mut self.out,
                     self.palette,
                     &verdict.table,
-                    ratio.as_deref(),
+                    report.host,
                     b.site,
                 )?;
             }
