@@ -123,6 +123,18 @@ codes! {
         "A group such as `CO` is read as carbon and oxygen; if cobalt (`Co`) was meant, fix the case.";
     InterstitialVacancy = "V411", Error, "vacancy on an interstitial site",
         "An interstitial site is empty in the perfect crystal, so it cannot hold a vacancy.";
+    MixedMarks = "L501", Warning, "mixed marks",
+        "One file should spell charge marks one way: ASCII dots and primes (`V_O..`), stars (`V_O**`), Unicode bullets and primes (`V_O••`) or LaTeX (`\\bullet`). Mixed spellings are legal but make files harder to read and diff; `lacuna fmt --write` unifies them.";
+    RepeatedReaction = "L502", Warning, "repeated reaction",
+        "A reaction that is a multiple or the reverse of an earlier one in the same file adds no information and often means a copy-paste slip or two names for one equilibrium.";
+    DuplicateLabel = "L503", Error, "duplicate name",
+        "Reaction names identify reactions in models and reports, so each name is used once per file.";
+    UnknownReaction = "L504", Error, "unknown reaction",
+        "A model line refers to a reaction by name, and no reaction above it in the file has that name.";
+    FractionalCoefficients = "L505", Warning, "fractional coefficients",
+        "Fractional coefficients (`1/2 O2(g)`) are fine, but a file that otherwise writes whole numbers reads more easily when all its reactions do. Multiply through, or keep fractions throughout.";
+    ImplicitNeutral = "L506", Warning, "implicit neutral mark",
+        "A vacancy or interstitial written without any mark reads as neutral (`V_O` is `V_O×`). On a charged site the ionised form is more usual, so an unmarked defect is often a forgotten mark; write `×` when the neutral defect is meant.";
 }
 
 impl fmt::Display for Code {

@@ -9,8 +9,10 @@ use crate::check::{Verdict, check_reaction};
 use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::document::{Line, classify};
 use crate::host::Host;
+use crate::lint::{FileLints, Levels};
 use crate::notation::{Reaction, parse_reaction};
 use std::io::{self, BufRead};
+use std::sync::Arc;
 
 /// Everything known about one reaction line after checking it.
 #[derive(Debug)]
@@ -30,7 +32,7 @@ pub struct ReactionReport<'a> {
     /// Parse and check diagnostics, located (line and column set).
     pub diagnostics: Vec<Diagnostic>,
     /// The host the reaction was checked against.
-    pub host: Option<&'a Host>,
+    pub host: Option<Arc<Host>>,
 }
 
 impl ReactionReport<'_> {
@@ -53,6 +55,11 @@ pub trait Sink {
         diagnostic: &Diagnostic,
     ) -> io::Result<()>;
     fn finish(&mut self, summary: &Summary) -> io::Result<()>;
+    /// Whether reactions with no diagnostics are printed at all; when not,
+    /// the engine may skip building their reports.
+    fn wants_passing(&self) -> bool {
+        true
+    }
 }
 
 /// Totals over everything checked.
@@ -84,14 +91,16 @@ impl Summary {
 
 /// Checks reaction sources one after another, keeping per-source state.
 pub struct Checker<'s> {
-    default_host: Option<Host>,
+    default_host: Option<Arc<Host>>,
+    levels: Levels,
     sink: &'s mut dyn Sink,
     pub summary: Summary,
 }
 
-/// State that lives for one source: the current host.
+/// State that lives for one source: the current host and the cross-line rules.
 struct SourceState {
-    host: Option<Host>,
+    host: Option<Arc<Host>>,
+    lints: FileLints,
     /// The line of a `host` declaration that failed, so later reactions say why they have no host.
     broken_host_line: Option<u32>,
 }
@@ -99,10 +108,17 @@ struct SourceState {
 impl<'s> Checker<'s> {
     pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
         Checker {
-            default_host,
+            default_host: default_host.map(Arc::new),
+            levels: Levels::default(),
             sink,
             summary: Summary::default(),
         }
+    }
+
+    /// Sets the rule levels (from `lacuna.toml` and the command line).
+    pub fn with_levels(mut self, levels: Levels) -> Self {
+        self.levels = levels;
+        self
     }
 
     /// Checks a reaction file (or stdin) read line by line.
@@ -110,6 +126,7 @@ impl<'s> Checker<'s> {
         self.summary.sources += 1;
         let mut state = SourceState {
             host: self.default_host.clone(),
+            lints: FileLints::default(),
             broken_host_line: None,
         };
         let mut buffer = Vec::with_capacity(256);
@@ -162,14 +179,18 @@ impl<'s> Checker<'s> {
             Line::Host(span) => {
                 match Host::parse(text, span) {
                     Ok(host) => {
-                        state.host = Some(host);
+                        state.host = Some(Arc::new(host));
                         state.broken_host_line = None;
                     }
                     Err(diagnostics) => {
                         state.host = None;
                         state.broken_host_line = Some(number);
+                        let mut diagnostics: Vec<Diagnostic> = diagnostics
+                            .into_iter()
+                            .map(|d| d.locate(number, text))
+                            .collect();
+                        self.levels.apply(&mut diagnostics, text);
                         for d in diagnostics {
-                            let d = d.locate(number, text);
                             self.summary.count(std::slice::from_ref(&d));
                             self.sink.line_problem(name, text, &d)?;
                         }
@@ -187,7 +208,7 @@ impl<'s> Checker<'s> {
                 let (parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
                 let verdict = parsed
                     .as_ref()
-                    .map(|r| check_reaction(r, state.host.as_ref()));
+                    .map(|r| check_reaction(r, state.host.as_deref()));
                 if let Some(v) = &verdict {
                     for d in &v.diagnostics {
                         if d.code == Code::NoHost {
@@ -202,10 +223,20 @@ impl<'s> Checker<'s> {
                         diagnostics.push(d.clone());
                     }
                 }
-                let diagnostics: Vec<Diagnostic> = diagnostics
+                if let Some(r) = &parsed {
+                    let named = label.clone().map(|l| (&text[l.clone()], l));
+                    diagnostics.extend(state.lints.reaction(
+                        number,
+                        named,
+                        r,
+                        state.host.as_deref(),
+                    ));
+                }
+                let mut diagnostics: Vec<Diagnostic> = diagnostics
                     .into_iter()
                     .map(|d| d.locate(number, text))
                     .collect();
+                self.levels.apply(&mut diagnostics, text);
                 let report = ReactionReport {
                     source: name,
                     line: number,
@@ -215,13 +246,16 @@ impl<'s> Checker<'s> {
                     reaction: parsed,
                     verdict,
                     diagnostics,
-                    host: state.host.as_ref(),
+                    host: state.host.clone(),
                 };
                 self.summary.reactions += 1;
                 if !report.ok() {
                     self.summary.failed += 1;
                 }
                 self.summary.count(&report.diagnostics);
+                if report.diagnostics.is_empty() && !self.sink.wants_passing() {
+                    return Ok(());
+                }
                 self.sink.reaction(&report)
             }
         }
@@ -233,9 +267,136 @@ impl<'s> Checker<'s> {
         self.sink.line_problem(name, "", &diagnostic)
     }
 
+    /// Adds totals of sources checked elsewhere (on other threads).
+    pub fn absorb(&mut self, summary: &Summary) {
+        self.summary.merge(summary);
+    }
+
+    /// The sink, for replaying recordings made on other threads.
+    pub fn sink(&mut self) -> &mut dyn Sink {
+        self.sink
+    }
+
     /// Ends the run: hands the summary to the sink and returns it.
     pub fn finish(self) -> io::Result<Summary> {
         self.sink.finish(&self.summary)?;
         Ok(self.summary)
+    }
+}
+
+/// A reaction report that owns its data, for checking files on other threads
+/// and replaying the results in a stable order.
+#[derive(Debug)]
+pub struct OwnedReport {
+    pub source: Arc<str>,
+    pub line: u32,
+    pub line_text: String,
+    pub label: Option<String>,
+    pub text: String,
+    pub reaction: Option<Reaction>,
+    pub verdict: Option<Verdict>,
+    pub diagnostics: Vec<Diagnostic>,
+    pub host: Option<Arc<Host>>,
+}
+
+/// What a `Recording` captured, in order.
+#[derive(Debug)]
+pub enum Event {
+    Reaction(Box<OwnedReport>),
+    Problem {
+        source: Arc<str>,
+        line_text: String,
+        diagnostic: Diagnostic,
+    },
+}
+
+/// A sink that keeps what it is given, to be replayed into another sink.
+#[derive(Debug, Default)]
+pub struct Recording {
+    pub events: Vec<Event>,
+    /// Keep reactions that pass too (the target sink prints them).
+    pub keep_passing: bool,
+}
+
+impl Sink for Recording {
+    fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()> {
+        if !self.keep_passing && report.diagnostics.is_empty() {
+            return Ok(());
+        }
+        self.events.push(Event::Reaction(Box::new(OwnedReport {
+            source: Arc::from(report.source),
+            line: report.line,
+            line_text: report.line_text.to_string(),
+            label: report.label.map(str::to_string),
+            text: report.text.to_string(),
+            reaction: report.reaction.clone(),
+            verdict: report.verdict.clone(),
+            diagnostics: report.diagnostics.clone(),
+            host: report.host.clone(),
+        })));
+        Ok(())
+    }
+
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
+        self.events.push(Event::Problem {
+            source: Arc::from(source),
+            line_text: line_text.to_string(),
+            diagnostic: diagnostic.clone(),
+        });
+        Ok(())
+    }
+
+    fn finish(&mut self, _summary: &Summary) -> io::Result<()> {
+        Ok(())
+    }
+
+    fn wants_passing(&self) -> bool {
+        self.keep_passing
+    }
+}
+
+impl Recording {
+    /// Sends every recorded event to `sink`, in the order recorded.
+    pub fn replay(self, sink: &mut dyn Sink) -> io::Result<()> {
+        for event in self.events {
+            match event {
+                Event::Reaction(r) => {
+                    let report = ReactionReport {
+                        source: &r.source,
+                        line: r.line,
+                        line_text: &r.line_text,
+                        label: r.label.as_deref(),
+                        text: &r.text,
+                        reaction: r.reaction,
+                        verdict: r.verdict,
+                        diagnostics: r.diagnostics,
+                        host: r.host,
+                    };
+                    sink.reaction(&report)?;
+                }
+                Event::Problem {
+                    source,
+                    line_text,
+                    diagnostic,
+                } => sink.line_problem(&source, &line_text, &diagnostic)?,
+            }
+        }
+        Ok(())
+    }
+}
+
+impl Summary {
+    /// Adds another run's totals to these.
+    pub fn merge(&mut self, other: &Summary) {
+        self.sources += other.sources;
+        self.reactions += other.reactions;
+        self.failed += other.failed;
+        self.errors += other.errors;
+        self.warnings += other.warnings;
     }
 }

@@ -1,18 +1,23 @@
-//! `lacuna check`: the three balances over files, stdin and inline reactions.
+//! `lacuna check`: the three balances and the lint rules over files,
+//! folders, stdin and inline reactions.
 
 use super::{ColorChoice, Format, fail, host_argument};
-use crate::engine::{Checker, Sink};
+use crate::engine::{Checker, Recording, Sink, Summary};
+use crate::host::Host;
+use crate::lint::{Level, Levels, find_config};
 use crate::render::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
 use clap::Args;
+use rayon::prelude::*;
 use std::fs::File;
 use std::io::{self, BufReader, BufWriter, Write};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Reaction files to check; `-` reads standard input.
-    #[arg(value_name = "FILE")]
+    /// Reaction files or folders to check (folders are searched for `.kvr`
+    /// files, honouring .gitignore and .lacunaignore); `-` reads standard input.
+    #[arg(value_name = "PATH")]
     pub files: Vec<PathBuf>,
     /// A reaction to check (repeatable); uses --host.
     #[arg(short, long = "reaction", value_name = "TEXT")]
@@ -33,17 +38,37 @@ pub struct CheckArgs {
     /// Also list the reactions that pass (human format).
     #[arg(short, long)]
     pub verbose: bool,
+    /// Treat a rule (code or name), or all `warnings`, as an error (repeatable).
+    #[arg(long, value_name = "RULE")]
+    pub deny: Vec<String>,
+    /// Report a rule as a warning (repeatable).
+    #[arg(long, value_name = "RULE")]
+    pub warn: Vec<String>,
+    /// Silence a rule (repeatable).
+    #[arg(long, value_name = "RULE")]
+    pub allow: Vec<String>,
+    /// Read rule levels from this file instead of looking for lacuna.toml.
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<PathBuf>,
 }
+
+/// Folder searches hand out this many files to the worker threads at a time,
+/// so results are printed in order while memory stays bounded.
+const BATCH: usize = 256;
 
 pub fn run(args: &CheckArgs) -> ExitCode {
     if args.files.is_empty() && args.reactions.is_empty() {
         return fail(
-            "nothing to check: name reaction files, `-` for standard input, or give --reaction TEXT",
+            "nothing to check: name reaction files or folders, `-` for standard input, or give --reaction TEXT",
         );
     }
     let host = match args.host.as_deref().map(host_argument).transpose() {
         Ok(host) => host,
         Err(code) => return code,
+    };
+    let levels = match levels(args) {
+        Ok(levels) => levels,
+        Err(message) => return fail(message),
     };
     let stdout = io::stdout();
     let out = BufWriter::new(stdout.lock());
@@ -58,22 +83,19 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         Format::Gnu => Box::new(GnuSink::new(out)),
         Format::Sarif => Box::new(SarifSink::new(out)),
     };
+    let keep_passing = sink.wants_passing();
     let mut io_failed = false;
-    let mut checker = Checker::new(host, sink.as_mut());
+    let mut checker = Checker::new(host.clone(), sink.as_mut()).with_levels(levels.clone());
     for path in &args.files {
         let result = if path.as_os_str() == "-" {
             checker.check_reader("<stdin>", io::stdin().lock())
         } else if path.is_dir() {
-            Err(io::Error::other(
-                "is a folder; name the reaction files in it",
-            ))
+            let (files, walk_failed) = reaction_files(path);
+            io_failed |= walk_failed;
+            check_in_parallel(&mut checker, &files, host.as_ref(), &levels, keep_passing)
+                .map(|failed| io_failed |= failed)
         } else {
-            File::open(path).and_then(|f| {
-                checker.check_reader(
-                    &path.display().to_string(),
-                    BufReader::with_capacity(1 << 16, f),
-                )
-            })
+            check_file(&mut checker, path)
         };
         if let Err(e) = result {
             if e.kind() == io::ErrorKind::BrokenPipe {
@@ -102,4 +124,111 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
         Err(e) => fail(e),
     }
+}
+
+fn check_file(checker: &mut Checker<'_>, path: &Path) -> io::Result<()> {
+    let file = File::open(path)?;
+    checker.check_reader(
+        &path.display().to_string(),
+        BufReader::with_capacity(1 << 16, file),
+    )
+}
+
+/// Rule levels: the config file (given, or `lacuna.toml` found upwards from
+/// the current folder), then the command-line flags, which win.
+fn levels(args: &CheckArgs) -> Result<Levels, String> {
+    let config = match &args.config {
+        Some(path) => Some(path.clone()),
+        None => std::env::current_dir()
+            .ok()
+            .and_then(|dir| find_config(&dir)),
+    };
+    let mut levels = match config {
+        Some(path) => {
+            let text = std::fs::read_to_string(&path)
+                .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+            Levels::from_config(&text, &path)?
+        }
+        None => Levels::default(),
+    };
+    for (names, level) in [
+        (&args.allow, Level::Allow),
+        (&args.warn, Level::Warn),
+        (&args.deny, Level::Deny),
+    ] {
+        for name in names {
+            levels.set(name, level)?;
+        }
+    }
+    Ok(levels)
+}
+
+/// The `.kvr` files below `folder`, sorted, honouring ignore files. Problems
+/// met on the way (unreadable folders, link loops) are printed and flagged.
+pub fn reaction_files(folder: &Path) -> (Vec<PathBuf>, bool) {
+    let mut files = Vec::new();
+    let mut failed = false;
+    let walker = ignore::WalkBuilder::new(folder)
+        .follow_links(true)
+        .add_custom_ignore_filename(".lacunaignore")
+        .require_git(false)
+        .build();
+    for entry in walker {
+        match entry {
+            Ok(entry) => {
+                let path = entry.path();
+                if entry.file_type().is_some_and(|t| t.is_file())
+                    && path
+                        .extension()
+                        .is_some_and(|e| e == crate::document::EXTENSION)
+                {
+                    files.push(path.to_path_buf());
+                }
+            }
+            Err(e) => {
+                failed = true;
+                let _ = writeln!(io::stderr(), "lacuna: {e}");
+            }
+        }
+    }
+    files.sort();
+    (files, failed)
+}
+
+/// Checks files on all cores, then replays each file's results in order.
+fn check_in_parallel(
+    checker: &mut Checker<'_>,
+    files: &[PathBuf],
+    host: Option<&Host>,
+    levels: &Levels,
+    keep_passing: bool,
+) -> io::Result<bool> {
+    let mut failed = false;
+    for batch in files.chunks(BATCH) {
+        let results: Vec<(Recording, Summary, Option<(PathBuf, io::Error)>)> = batch
+            .par_iter()
+            .map(|path| {
+                let mut recording = Recording {
+                    events: Vec::new(),
+                    keep_passing,
+                };
+                let mut local =
+                    Checker::new(host.cloned(), &mut recording).with_levels(levels.clone());
+                let error = check_file(&mut local, path)
+                    .err()
+                    .map(|e| (path.clone(), e));
+                let summary = local.summary;
+                (recording, summary, error)
+            })
+            .collect();
+        for (recording, summary, error) in results {
+            recording.replay(checker.sink())?;
+            checker.absorb(&summary);
+            if let Some((path, e)) = error {
+                failed = true;
+                let _ = writeln!(io::stderr(), "lacuna: cannot read {}: {e}", path.display());
+            }
+        }
+    }
+    Ok(failed)
 }

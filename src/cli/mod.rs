@@ -3,6 +3,8 @@
 //! problems, 2 usage or I/O error.
 
 mod check;
+mod explain;
+mod fmt;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -22,6 +24,10 @@ pub struct Cli {
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
+    /// Rewrite reaction files in one canonical layout.
+    Fmt(fmt::FmtArgs),
+    /// Explain a diagnostic code, or list them all.
+    Explain(explain::ExplainArgs),
 }
 
 /// Output format of `check`.
@@ -66,6 +72,8 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Fmt(args) => fmt::run(&args),
+        Command::Explain(args) => explain::run(&args),
     }
 }
 

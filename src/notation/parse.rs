@@ -531,7 +531,11 @@ impl<'a> Parser_<'a> {
                 self.span_of(&body[..shown.len()]),
                 format!("`{shown}` cannot start a species"),
             )
-            .help = Some("a species starts with an element, `V` (vacancy), `e` or `h`".into());
+            .help = Some(if looks_like_name(body) {
+                "a reaction name is followed by `:` and a space: `red: O_O -> …`".into()
+            } else {
+                "a species starts with an element, `V` (vacancy), `e` or `h`".into()
+            });
             return None;
         }
         if !escaped {
@@ -963,6 +967,16 @@ fn matching_close(text: &str) -> Option<usize> {
         }
     }
     None
+}
+
+/// `red:O_O`: a name glued to its reaction.
+fn looks_like_name(text: &str) -> bool {
+    text.find(':').is_some_and(|colon| {
+        colon > 0
+            && text[..colon]
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '.')
+    })
 }
 
 fn is_mark_char(c: char) -> bool {

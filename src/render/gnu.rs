@@ -48,6 +48,10 @@ impl<W: Write> Sink for GnuSink<W> {
         self.write(source, diagnostic)
     }
 
+    fn wants_passing(&self) -> bool {
+        false
+    }
+
     fn finish(&mut self, _summary: &Summary) -> io::Result<()> {
         self.out.flush()
     }

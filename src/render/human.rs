@@ -198,7 +198,7 @@ impl<W: Write> Sink for HumanSink<W> {
                     &mut self.out,
                     self.palette,
                     &verdict.table,
-                    report.host,
+                    report.host.as_deref(),
                     b.site,
                 )?;
             }
@@ -217,6 +217,10 @@ impl<W: Write> Sink for HumanSink<W> {
         }
         write_diagnostic(&mut self.out, self.palette, source, line_text, diagnostic)?;
         writeln!(self.out)
+    }
+
+    fn wants_passing(&self) -> bool {
+        self.verbose && !self.quiet
     }
 
     fn finish(&mut self, s: &Summary) -> io::Result<()> {

@@ -178,6 +178,10 @@ impl<W: Write> Sink for SarifSink<W> {
         Ok(())
     }
 
+    fn wants_passing(&self) -> bool {
+        false
+    }
+
     fn finish(&mut self, _summary: &Summary) -> io::Result<()> {
         let rules = Code::ALL
             .iter()

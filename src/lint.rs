@@ -1,0 +1,544 @@
+//! Rules beyond the three balances, and the levels every rule runs at.
+//!
+//! In: each reaction of a file in order, with its verdict. Out: extra
+//! diagnostics (mixed mark styles, repeated reactions, duplicate names,
+//! fractional coefficients in an integer file, unmarked defects) and the
+//! final severity of every diagnostic after configuration (`lacuna.toml`,
+//! `--deny`/`--warn`/`--allow`) and per-line `# lacuna-allow:` comments.
+
+use crate::diagnostic::{Code, Diagnostic, Severity};
+use crate::host::{Host, SiteLookup};
+use crate::notation::{
+    Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site, SpeciesKey, Term,
+};
+use crate::number::Q;
+use std::collections::HashMap;
+use std::collections::hash_map::DefaultHasher;
+use std::hash::{Hash, Hasher};
+use std::path::{Path, PathBuf};
+
+/// The comment that silences codes on its own line: `# lacuna-allow: L501 V402`.
+pub const ALLOW_COMMENT: &str = "lacuna-allow:";
+
+/// The configuration file looked for at the repository root.
+pub const CONFIG_FILE: &str = "lacuna.toml";
+
+/// What to do with a rule's diagnostics.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Level {
+    Allow,
+    Warn,
+    Deny,
+}
+
+impl Level {
+    pub fn parse(text: &str) -> Option<Level> {
+        match text.to_ascii_lowercase().as_str() {
+            "allow" | "off" => Some(Level::Allow),
+            "warn" | "warning" => Some(Level::Warn),
+            "deny" | "error" => Some(Level::Deny),
+            _ => None,
+        }
+    }
+}
+
+/// Levels per code, plus the blanket "warnings are errors" switch.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct Levels {
+    pub by_code: HashMap<Code, Level>,
+    pub deny_warnings: bool,
+}
+
+impl Levels {
+    /// Sets a level from a command-line or config name: a code (`L501`), a
+    /// rule name (`mixed-marks`) or `warnings` (for deny only).
+    pub fn set(&mut self, name: &str, level: Level) -> Result<(), String> {
+        if name.eq_ignore_ascii_case("warnings") && level == Level::Deny {
+            self.deny_warnings = true;
+            return Ok(());
+        }
+        let code = Code::from_str_id(name)
+            .or_else(|| Code::ALL.iter().copied().find(|c| rule_name(*c) == name));
+        match code {
+            Some(code) => {
+                self.by_code.insert(code, level);
+                Ok(())
+            }
+            None => Err(format!(
+                "`{name}` is not a rule: use a code such as `L501` or a name such as `mixed-marks` (`lacuna explain` lists them)"
+            )),
+        }
+    }
+
+    /// Applies levels and line suppressions to one line's diagnostics.
+    pub fn apply(&self, diagnostics: &mut Vec<Diagnostic>, line_text: &str) {
+        if self.by_code.is_empty() && !self.deny_warnings && !line_text.contains(ALLOW_COMMENT) {
+            return;
+        }
+        let allowed = allowed_on_line(line_text);
+        diagnostics.retain_mut(|d| {
+            if allowed.contains(&d.code) {
+                return false;
+            }
+            match self.by_code.get(&d.code) {
+                Some(Level::Allow) => return false,
+                Some(Level::Deny) => d.severity = Severity::Error,
+                Some(Level::Warn) => d.severity = Severity::Warning,
+                None => {}
+            }
+            if self.deny_warnings && d.severity == Severity::Warning {
+                d.severity = Severity::Error;
+            }
+            true
+        });
+    }
+
+    /// Reads `lacuna.toml`: a `[rules]` table of `name-or-code = "allow|warn|deny"`.
+    pub fn from_config(text: &str, path: &Path) -> Result<Levels, String> {
+        let value: toml::Table = text
+            .parse()
+            .map_err(|e: toml::de::Error| format!("{}: {e}", path.display()))?;
+        let mut levels = Levels::default();
+        for (key, item) in &value {
+            if key != "rules" {
+                return Err(format!(
+                    "{}: unknown section `{key}`; the file holds a `[rules]` table",
+                    path.display()
+                ));
+            }
+            let Some(rules) = item.as_table() else {
+                return Err(format!("{}: `rules` must be a table", path.display()));
+            };
+            for (name, level) in rules {
+                let level = level.as_str().and_then(Level::parse).ok_or_else(|| {
+                    format!(
+                        "{}: rule `{name}` needs \"allow\", \"warn\" or \"deny\"",
+                        path.display()
+                    )
+                })?;
+                levels
+                    .set(name, level)
+                    .map_err(|e| format!("{}: {e}", path.display()))?;
+            }
+        }
+        Ok(levels)
+    }
+}
+
+/// Finds `lacuna.toml` in `start` or its parents, stopping at a repository root.
+pub fn find_config(start: &Path) -> Option<PathBuf> {
+    let mut dir = Some(start);
+    while let Some(d) = dir {
+        let candidate = d.join(CONFIG_FILE);
+        if candidate.is_file() {
+            return Some(candidate);
+        }
+        if d.join(".git").exists() {
+            return None;
+        }
+        dir = d.parent();
+    }
+    None
+}
+
+/// A rule's kebab-case name, from its title.
+pub fn rule_name(code: Code) -> String {
+    code.title().replace(' ', "-")
+}
+
+fn allowed_on_line(line_text: &str) -> Vec<Code> {
+    let Some(at) = line_text.find(ALLOW_COMMENT) else {
+        return Vec::new();
+    };
+    line_text[at + ALLOW_COMMENT.len()..]
+        .split(|c: char| c.is_whitespace() || c == ',')
+        .filter_map(Code::from_str_id)
+        .collect()
+}
+
+/// Above this many distinct reactions a file's repeats are no longer tracked,
+/// so memory stays bounded on huge generated files.
+const REPEAT_TRACKING_LIMIT: usize = 100_000;
+
+/// Per-file state of the rules that look across lines.
+#[derive(Debug, Default)]
+pub struct FileLints {
+    dot_style: Option<(MarkStyle, u32)>,
+    other_style: Option<(MarkStyle, u32)>,
+    seen: HashMap<u64, u32>,
+    labels: HashMap<String, u32>,
+    integer_reactions: u32,
+    fractional_reactions: u32,
+    repeat_limit_noted: bool,
+}
+
+impl FileLints {
+    /// Diagnostics for one reaction at `line`, in the context of the file so far.
+    pub fn reaction(
+        &mut self,
+        line: u32,
+        label: Option<(&str, std::ops::Range<usize>)>,
+        reaction: &Reaction,
+        host: Option<&Host>,
+    ) -> Vec<Diagnostic> {
+        let mut out = Vec::new();
+        if let Some((name, span)) = label {
+            match self.labels.get(name) {
+                Some(first) => out.push(
+                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
+                        .with_help("names identify reactions in models and reports; give this one another name"),
+                ),
+                None => {
+                    self.labels.insert(name.to_string(), line);
+                }
+            }
+        }
+        self.mark_styles(line, reaction, &mut out);
+        self.repeats(line, reaction, &mut out);
+        self.fractions(reaction, &mut out);
+        if let Some(host) = host {
+            implicit_neutral(reaction, host, &mut out);
+        }
+        out
+    }
+
+    /// The names declared so far, for rules that check references.
+    pub fn knows_label(&self, name: &str) -> bool {
+        self.labels.contains_key(name)
+    }
+
+    fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
+        for species in species_of(reaction) {
+            if species.marks == MarkStyle::Unmarked
+                || matches!(species.occupant, Occupant::Electron | Occupant::Hole)
+                    && species.marks == MarkStyle::Unmarked
+            {
+                continue;
+            }
+            // Dots have four spellings; primes and crosses three (a star user
+            // writes ASCII primes), so the two are tracked apart.
+            let (slot, style) = if species.charge > 0 {
+                (&mut self.dot_style, species.marks)
+            } else {
+                (
+                    &mut self.other_style,
+                    if species.marks == MarkStyle::Star {
+                        MarkStyle::Ascii
+                    } else {
+                        species.marks
+                    },
+                )
+            };
+            match slot {
+                None => *slot = Some((style, line)),
+                Some((first, first_line)) if *first != style => {
+                    let (first, first_line) = (*first, *first_line);
+                    out.push(
+                        Diagnostic::new(Code::MixedMarks, species.span.clone(), format!("charge marks written in {} style; line {first_line} uses {} style", style_name(style), style_name(first)))
+                            .with_help("use one spelling of the marks in a file; `lacuna fmt --write` rewrites them"),
+                    );
+                }
+                Some(_) => {}
+            }
+        }
+    }
+
+    fn repeats(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
+        let Some((forward, backward)) = normalized_hashes(reaction) else {
+            return;
+        };
+        let earlier = match (self.seen.get(&forward), self.seen.get(&backward)) {
+            (Some(line), _) => Some((*line, "a multiple")),
+            (None, Some(line)) => Some((*line, "the reverse")),
+            (None, None) => None,
+        };
+        if let Some((first, what)) = earlier {
+            out.push(
+                Diagnostic::new(
+                    Code::RepeatedReaction,
+                    reaction.span.clone(),
+                    format!("this reaction is {what} of the one on line {first}"),
+                )
+                .with_help(
+                    "a repeated reaction adds no information; remove it or name the one you mean",
+                ),
+            );
+            return;
+        }
+        if self.seen.len() < REPEAT_TRACKING_LIMIT {
+            self.seen.insert(forward, line);
+        } else if !self.repeat_limit_noted {
+            self.repeat_limit_noted = true;
+            let mut note = Diagnostic::new(
+                Code::RepeatedReaction,
+                reaction.span.clone(),
+                format!(
+                    "more than {REPEAT_TRACKING_LIMIT} distinct reactions: later repeats are not looked for"
+                ),
+            );
+            note.severity = Severity::Note;
+            out.push(note);
+        }
+    }
+
+    fn fractions(&mut self, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
+        let fractional = reaction.terms().find(|(_, t)| !t.coefficient.is_integer());
+        match fractional {
+            None => self.integer_reactions += 1,
+            Some((_, term)) => {
+                if self.integer_reactions > self.fractional_reactions {
+                    out.push(
+                        Diagnostic::new(Code::FractionalCoefficients, term.span.clone(), "a fractional coefficient in a file that otherwise uses whole numbers")
+                            .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
+                    );
+                }
+                self.fractional_reactions += 1;
+            }
+        }
+    }
+}
+
+fn style_name(style: MarkStyle) -> &'static str {
+    match style {
+        MarkStyle::Unmarked => "unmarked",
+        MarkStyle::Ascii => "ASCII (`.` `'` `x`)",
+        MarkStyle::Star => "star (`*`)",
+        MarkStyle::Unicode => "Unicode (`•` `′` `×`)",
+        MarkStyle::Latex => "LaTeX (`\\bullet` `\\prime`)",
+    }
+}
+
+fn species_of(reaction: &Reaction) -> impl Iterator<Item = &crate::notation::Species> {
+    fn collect<'a>(term: &'a Term, into: &mut Vec<&'a crate::notation::Species>) {
+        match &term.entity {
+            Entity::Species(s) => into.push(s),
+            Entity::Associate(a) => a.parts.iter().for_each(|p| collect(p, into)),
+            _ => {}
+        }
+    }
+    let mut all = Vec::new();
+    for (_, t) in reaction.terms() {
+        collect(t, &mut all);
+    }
+    all.into_iter()
+}
+
+/// What a term stands for, without spelling, for comparing reactions.
+#[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+enum EntityKey {
+    Species(SpeciesKey),
+    Compound(Formula, Option<Phase>),
+    Associate(Vec<(SpeciesKey, Q)>, Option<i32>),
+}
+
+fn entity_key(term: &Term) -> Option<EntityKey> {
+    match &term.entity {
+        Entity::Species(s) => Some(EntityKey::Species(s.key())),
+        Entity::Compound(c) => {
+            let mut atoms = c.formula.atoms.clone();
+            atoms.sort();
+            Some(EntityKey::Compound(Formula { atoms }, c.phase))
+        }
+        Entity::Associate(a) => {
+            let mut parts: Vec<(SpeciesKey, Q)> = a
+                .parts
+                .iter()
+                .filter_map(|p| match &p.entity {
+                    Entity::Species(s) => Some((s.key(), p.coefficient)),
+                    _ => None,
+                })
+                .collect();
+            parts.sort();
+            Some(EntityKey::Associate(parts, a.charge))
+        }
+        Entity::Nil => None,
+    }
+}
+
+/// Hashes of the reaction's net stoichiometry scaled to a canonical size,
+/// forwards and reversed: equal hashes mean a multiple or the reverse.
+fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
+    let mut net: Vec<(EntityKey, Q)> = Vec::new();
+    for (right, term) in reaction.terms() {
+        let Some(key) = entity_key(term) else {
+            continue;
+        };
+        let signed = if right {
+            term.coefficient
+        } else {
+            -term.coefficient
+        };
+        match net.iter_mut().find(|(k, _)| *k == key) {
+            Some((_, q)) => *q += signed,
+            None => net.push((key, signed)),
+        }
+    }
+    net.retain(|(_, q)| *q != Q::from_integer(0));
+    net.sort_by(|a, b| a.0.cmp(&b.0));
+    let scale = net.first()?.1;
+    let hash = |sign: Q| {
+        let mut hasher = DefaultHasher::new();
+        for (key, q) in &net {
+            key.hash(&mut hasher);
+            (q / scale * sign).hash(&mut hasher);
+        }
+        hasher.finish()
+    };
+    let scale_sign = if scale > Q::from_integer(0) {
+        Q::from_integer(1)
+    } else {
+        Q::from_integer(-1)
+    };
+    // Dividing by the first coefficient fixes the scale; the sign of that
+    // coefficient says which way round the reaction is written.
+    Some((hash(scale_sign), hash(-scale_sign)))
+}
+
+/// Vacancies and interstitials written without a mark on a charged site.
+fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>) {
+    for species in species_of(reaction) {
+        if species.marks != MarkStyle::Unmarked {
+            continue;
+        }
+        let usual = match (&species.occupant, &species.site) {
+            (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => match host
+                .lookup(*element, label.as_deref())
+            {
+                SiteLookup::Found(i) => {
+                    let charge = -host.sublattices[i].charge;
+                    (charge != Q::from_integer(0) && charge.is_integer()).then(|| *charge.numer())
+                }
+                _ => None,
+            },
+            (Occupant::Atoms { formula, .. }, Some(Site::Interstitial)) => formula
+                .single_element()
+                .and_then(|z| host.sublattices.iter().find(|s| s.element == z))
+                .filter(|s| s.charge.is_integer() && s.charge != Q::from_integer(0))
+                .map(|s| *s.charge.numer()),
+            _ => None,
+        };
+        let Some(usual) = usual else { continue };
+        let mut fixed = species.clone();
+        fixed.charge = i32::try_from(usual).unwrap_or(0);
+        let fixed_text = crate::notation::render_species(&fixed, crate::notation::Style::Unicode);
+        let mut neutral = species.clone();
+        neutral.marks = MarkStyle::Unicode;
+        let neutral_text =
+            crate::notation::render_species(&neutral, crate::notation::Style::Unicode);
+        out.push(
+            Diagnostic::new(Code::ImplicitNeutral, species.span.clone(), format!("no charge mark, so this reads as the neutral {neutral_text}"))
+                .with_help(format!("in this host the fully ionised form is {fixed_text}; write `×` if the neutral defect is meant")),
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::notation::parse_reaction;
+
+    fn lint(host: &str, lines: &[&str]) -> Vec<(u32, &'static str)> {
+        let host = Host::from_spec(host).expect("host");
+        let mut lints = FileLints::default();
+        let mut found = Vec::new();
+        for (i, text) in lines.iter().enumerate() {
+            let (reaction, _) = parse_reaction(text, 0..text.len());
+            let line = i as u32 + 1;
+            for d in lints.reaction(line, None, &reaction.expect("parses"), Some(&host)) {
+                found.push((line, d.code.as_str()));
+            }
+        }
+        found
+    }
+
+    #[test]
+    fn mixed_marks_are_found_across_lines() {
+        assert_eq!(
+            lint(
+                "ZrO2",
+                &["O_O -> V_O.. + 2e' + 1/2 O2(g)", "nil -> V_Zr′′′′ + 2V_O••"]
+            ),
+            vec![(2, "L501"), (2, "L501")]
+        );
+        assert!(
+            lint(
+                "ZrO2",
+                &["O_O -> V_O** + 2e' + 1/2 O2(g)", "nil -> e' + h*"]
+            )
+            .is_empty()
+        );
+    }
+
+    #[test]
+    fn multiples_and_reverses_are_found() {
+        let found = lint(
+            "ZrO2",
+            &[
+                "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+                "2O_O -> 2V_O.. + 4e' + O2(g)",
+                "V_O.. + 2e' + 1/2 O2(g) -> O_O",
+                "nil -> e' + h.",
+            ],
+        );
+        assert_eq!(found, vec![(2, "L502"), (3, "L502")]);
+    }
+
+    #[test]
+    fn fractions_in_an_integer_file() {
+        let found = lint(
+            "ZrO2",
+            &[
+                "nil -> e' + h.",
+                "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
+                "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+            ],
+        );
+        assert_eq!(found, vec![(3, "L505")]);
+    }
+
+    #[test]
+    fn unmarked_vacancies_in_charged_sites() {
+        assert_eq!(
+            lint("ZrO2", &["nil -> V_Zr + 2V_O"]),
+            vec![(1, "L506"), (1, "L506")]
+        );
+        assert!(lint("Al", &["Al_Al -> V_Al + Al(s)"]).is_empty());
+    }
+
+    #[test]
+    fn levels_and_line_suppressions() {
+        let mut levels = Levels::default();
+        levels.set("mixed-marks", Level::Deny).expect("known rule");
+        levels.set("warnings", Level::Deny).expect("blanket");
+        levels.set("V407", Level::Allow).expect("code");
+        assert!(levels.set("no-such-rule", Level::Warn).is_err());
+        let mut ds = vec![
+            Diagnostic::new(Code::MixedMarks, 0..1, "m"),
+            Diagnostic::new(Code::SameOnBothSides, 0..1, "s"),
+            Diagnostic::new(Code::RareOxidationState, 0..1, "r"),
+            Diagnostic::new(Code::FractionalCoefficients, 0..1, "f"),
+        ];
+        levels.apply(&mut ds, "x # lacuna-allow: L505");
+        let got: Vec<(&str, Severity)> = ds.iter().map(|d| (d.code.as_str(), d.severity)).collect();
+        assert_eq!(
+            got,
+            vec![("L501", Severity::Error), ("V402", Severity::Error)]
+        );
+    }
+
+    #[test]
+    fn config_files() {
+        let levels = Levels::from_config(
+            "[rules]\nL501 = \"allow\"\nrepeated-reaction = \"deny\"\n",
+            Path::new("lacuna.toml"),
+        )
+        .expect("valid");
+        assert_eq!(levels.by_code.get(&Code::MixedMarks), Some(&Level::Allow));
+        assert_eq!(
+            levels.by_code.get(&Code::RepeatedReaction),
+            Some(&Level::Deny)
+        );
+        assert!(Levels::from_config("[rules]\nL501 = \"sometimes\"\n", Path::new("x")).is_err());
+        assert!(Levels::from_config("[other]\n", Path::new("x")).is_err());
+    }
+}
