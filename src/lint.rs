@@ -210,8 +210,6 @@ impl FileLints {
     fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
         for species in species_of(reaction) {
             if species.marks == MarkStyle::Unmarked
-                || matches!(species.occupant, Occupant::Electron | Occupant::Hole)
-                    && species.marks == MarkStyle::Unmarked
             {
                 continue;
             }

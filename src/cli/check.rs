@@ -195,6 +195,9 @@ pub fn reaction_files(folder: &Path) -> (Vec<PathBuf>, bool) {
     (files, failed)
 }
 
+/// One file checked on a worker thread: its events, totals and read error.
+type FileResult = (Recording, Summary, Option<(PathBuf, io::Error)>);
+
 /// Checks files on all cores, then replays each file's results in order.
 fn check_in_parallel(
     checker: &mut Checker<'_>,
@@ -205,7 +208,7 @@ fn check_in_parallel(
 ) -> io::Result<bool> {
     let mut failed = false;
     for batch in files.chunks(BATCH) {
-        let results: Vec<(Recording, Summary, Option<(PathBuf, io::Error)>)> = batch
+        let results: Vec<FileResult> = batch
             .par_iter()
             .map(|path| {
                 let mut recording = Recording {
