@@ -8,12 +8,9 @@
 
 use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::host::{Host, SiteLookup};
-use crate::notation::{
-    Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site, SpeciesKey, Term,
-};
+use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Species, Term};
 use crate::number::Q;
 use std::collections::HashMap;
-use std::collections::hash_map::DefaultHasher;
 use std::hash::{Hash, Hasher};
 use std::path::{Path, PathBuf};
 
@@ -208,10 +205,9 @@ impl FileLints {
     }
 
     fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        for species in species_of(reaction) {
-            if species.marks == MarkStyle::Unmarked
-            {
-                continue;
+        for_each_species(reaction, &mut |species| {
+            if species.marks == MarkStyle::Unmarked {
+                return;
             }
             // Dots have four spellings; primes and crosses three (a star user
             // writes ASCII primes), so the two are tracked apart.
@@ -238,7 +234,7 @@ impl FileLints {
                 }
                 Some(_) => {}
             }
-        }
+        });
     }
 
     fn repeats(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
@@ -306,59 +302,93 @@ fn style_name(style: MarkStyle) -> &'static str {
     }
 }
 
-fn species_of(reaction: &Reaction) -> impl Iterator<Item = &crate::notation::Species> {
-    fn collect<'a>(term: &'a Term, into: &mut Vec<&'a crate::notation::Species>) {
+/// Calls `f` on every species of a reaction, associates' parts included.
+fn for_each_species<'a>(reaction: &'a Reaction, f: &mut dyn FnMut(&'a Species)) {
+    fn visit<'a>(term: &'a Term, f: &mut dyn FnMut(&'a Species)) {
         match &term.entity {
-            Entity::Species(s) => into.push(s),
-            Entity::Associate(a) => a.parts.iter().for_each(|p| collect(p, into)),
+            Entity::Species(s) => f(s),
+            Entity::Associate(a) => a.parts.iter().for_each(|p| visit(p, f)),
             _ => {}
         }
     }
-    let mut all = Vec::new();
     for (_, t) in reaction.terms() {
-        collect(t, &mut all);
+        visit(t, f);
     }
-    all.into_iter()
 }
 
-/// What a term stands for, without spelling, for comparing reactions.
-#[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
-enum EntityKey {
-    Species(SpeciesKey),
-    Compound(Formula, Option<Phase>),
-    Associate(Vec<(SpeciesKey, Q)>, Option<i32>),
+/// A small, fast hasher (FNV-1a); repeat detection hashes every reaction,
+/// and SipHash's resistance to crafted collisions buys nothing here.
+struct Fnv(u64);
+
+impl Hasher for Fnv {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+
+    fn write(&mut self, bytes: &[u8]) {
+        for b in bytes {
+            self.0 = (self.0 ^ u64::from(*b)).wrapping_mul(0x0100_0000_01b3);
+        }
+    }
 }
 
-fn entity_key(term: &Term) -> Option<EntityKey> {
+fn fnv() -> Fnv {
+    Fnv(0xcbf2_9ce4_8422_2325)
+}
+
+/// Feeds what a species *is* (not how it is spelled) to a hasher.
+fn hash_species(s: &Species, h: &mut Fnv) {
+    match &s.occupant {
+        Occupant::Vacancy(_) => h.write_u8(1),
+        Occupant::Electron => h.write_u8(2),
+        Occupant::Hole => h.write_u8(3),
+        Occupant::Atoms { formula, .. } => {
+            h.write_u8(4);
+            formula.atoms.hash(h);
+        }
+    }
+    s.site.hash(h);
+    h.write_i32(s.charge);
+}
+
+/// A hash of what a term stands for; `None` for the perfect crystal.
+fn entity_hash(term: &Term) -> Option<u64> {
+    let mut h = fnv();
     match &term.entity {
-        Entity::Species(s) => Some(EntityKey::Species(s.key())),
+        Entity::Species(s) => hash_species(s, &mut h),
         Entity::Compound(c) => {
+            h.write_u8(5);
             let mut atoms = c.formula.atoms.clone();
             atoms.sort();
-            Some(EntityKey::Compound(Formula { atoms }, c.phase))
+            atoms.hash(&mut h);
+            c.phase.hash(&mut h);
         }
         Entity::Associate(a) => {
-            let mut parts: Vec<(SpeciesKey, Q)> = a
-                .parts
-                .iter()
-                .filter_map(|p| match &p.entity {
-                    Entity::Species(s) => Some((s.key(), p.coefficient)),
-                    _ => None,
-                })
-                .collect();
-            parts.sort();
-            Some(EntityKey::Associate(parts, a.charge))
+            h.write_u8(6);
+            // Parts in any order: combine their hashes commutatively.
+            let mut sum = 0u64;
+            for part in &a.parts {
+                if let Entity::Species(s) = &part.entity {
+                    let mut ph = fnv();
+                    hash_species(s, &mut ph);
+                    part.coefficient.hash(&mut ph);
+                    sum = sum.wrapping_add(ph.finish());
+                }
+            }
+            h.write_u64(sum);
+            a.charge.hash(&mut h);
         }
-        Entity::Nil => None,
+        Entity::Nil => return None,
     }
+    Some(h.finish())
 }
 
 /// Hashes of the reaction's net stoichiometry scaled to a canonical size,
 /// forwards and reversed: equal hashes mean a multiple or the reverse.
 fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
-    let mut net: Vec<(EntityKey, Q)> = Vec::new();
+    let mut net: Vec<(u64, Q)> = Vec::with_capacity(reaction.left.len() + reaction.right.len());
     for (right, term) in reaction.terms() {
-        let Some(key) = entity_key(term) else {
+        let Some(key) = entity_hash(term) else {
             continue;
         };
         let signed = if right {
@@ -372,31 +402,31 @@ fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
         }
     }
     net.retain(|(_, q)| *q != Q::from_integer(0));
-    net.sort_by(|a, b| a.0.cmp(&b.0));
+    net.sort_unstable_by_key(|(k, _)| *k);
     let scale = net.first()?.1;
-    let hash = |sign: Q| {
-        let mut hasher = DefaultHasher::new();
+    // Dividing by the first coefficient fixes the scale; its sign says which
+    // way round the reaction is written.
+    let hash = |sign: i64| {
+        let mut h = fnv();
         for (key, q) in &net {
-            key.hash(&mut hasher);
-            (q / scale * sign).hash(&mut hasher);
+            h.write_u64(*key);
+            let ratio = if q.is_integer() && scale.is_integer() && q.numer() % scale.numer() == 0 {
+                Q::from_integer(q.numer() / scale.numer())
+            } else {
+                q / scale
+            };
+            (ratio * Q::from_integer(sign)).hash(&mut h);
         }
-        hasher.finish()
+        h.finish()
     };
-    let scale_sign = if scale > Q::from_integer(0) {
-        Q::from_integer(1)
-    } else {
-        Q::from_integer(-1)
-    };
-    // Dividing by the first coefficient fixes the scale; the sign of that
-    // coefficient says which way round the reaction is written.
-    Some((hash(scale_sign), hash(-scale_sign)))
+    Some((hash(1), hash(-1)))
 }
 
 /// Vacancies and interstitials written without a mark on a charged site.
 fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>) {
-    for species in species_of(reaction) {
+    for_each_species(reaction, &mut |species| {
         if species.marks != MarkStyle::Unmarked {
-            continue;
+            return;
         }
         let usual = match (&species.occupant, &species.site) {
             (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => match host
@@ -415,7 +445,7 @@ fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>)
                 .map(|s| *s.charge.numer()),
             _ => None,
         };
-        let Some(usual) = usual else { continue };
+        let Some(usual) = usual else { return };
         let mut fixed = species.clone();
         fixed.charge = i32::try_from(usual).unwrap_or(0);
         let fixed_text = crate::notation::render_species(&fixed, crate::notation::Style::Unicode);
@@ -427,7 +457,7 @@ fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>)
             Diagnostic::new(Code::ImplicitNeutral, species.span.clone(), format!("no charge mark, so this reads as the neutral {neutral_text}"))
                 .with_help(format!("in this host the fully ionised form is {fixed_text}; write `×` if the neutral defect is meant")),
         );
-    }
+    });
 }
 
 #[cfg(test)]

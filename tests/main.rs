@@ -3,5 +3,6 @@
 
 mod check_cli;
 mod docs;
+mod lint_cli;
 mod properties;
 mod support;

@@ -282,3 +282,90 @@ fn scaling_and_reordering_keep_a_verdict() {
         );
     }
 }
+
+/// Reactions, each in several spellings, for building random files.
+const SPELLINGS: &[&[&str]] = &[
+    &[
+        "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
+        "Y2O3 → 2 Y_Zr′ + 3 O_O× + V_O••",
+        "Y2O3->2Y_Zr'+3O_Ox+V_O**",
+    ],
+    &[
+        "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+        "O_O ⇌ V_O^{••} + 2 e′ + ½ O2(g)",
+        "O_O<=>V_O^{..}+2e'+0.5O2(g)",
+    ],
+    &["nil -> e' + h.", "∅ → e′ + h•", "0 = e' + h*"],
+    &[
+        "Y2O3 -> 2Y_Zr' + 3O_O + V_O.",
+        "Y2O3 → 2 Y_Zr′ + 3 O_O + V_O•",
+    ],
+    &[
+        "CaO -> Ca_Zr'' + O_O + V_O..",
+        "CaO → Ca_Zr″ + O_O× + V_O••",
+    ],
+    &["nil -> V_Zr + 2V_O", "nil → V_Zr + 2 V_O"],
+    &["Ba(OH)2 -> Ba(OH)2", "Ba(OH)2 = Ba(OH)2"],
+    &[
+        "(Y_Zr' V_O..). + Y_Zr' -> (2Y_Zr' V_O..)x",
+        "{Y_Zr′ V_O••}• + Y_Zr′ → (2 Y_Zr′ V_O••)×",
+    ],
+];
+
+fn arb_file() -> impl Strategy<Value = String> {
+    let line = prop_oneof![
+        3 => (0usize..SPELLINGS.len(), any::<prop::sample::Index>(), prop::option::of("[a-z]{1,4}"), any::<bool>()).prop_map(|(r, s, label, comment)| {
+            let spelling = SPELLINGS[r][s.index(SPELLINGS[r].len())];
+            let mut line = match label { Some(l) => format!("{l}: {spelling}"), None => spelling.to_string() };
+            if comment { line.push_str("   # note"); }
+            line
+        }),
+        1 => Just(String::new()),
+        1 => Just("# a comment".to_string()),
+        1 => Just("host  CeO2".to_string()),
+    ];
+    prop::collection::vec(line, 0..12)
+        .prop_map(|lines| format!("host ZrO2\n{}\n", lines.join("\n")))
+}
+
+/// Per reaction: line, ok, and the balances.
+fn verdicts(text: &str) -> Vec<(u32, bool, Option<(bool, bool, Option<bool>)>)> {
+    use lacuna::engine::{Checker, Event, Recording};
+    let mut recording = Recording {
+        events: Vec::new(),
+        keep_passing: true,
+    };
+    let mut checker = Checker::new(None, &mut recording);
+    checker.check_text("x", text).expect("in memory");
+    let _ = checker.finish();
+    recording
+        .events
+        .iter()
+        .filter_map(|e| match e {
+            Event::Reaction(r) => {
+                let ok = !r.diagnostics.iter().any(|d| d.is_error()) && r.verdict.is_some();
+                Some((
+                    r.line,
+                    ok,
+                    r.verdict
+                        .as_ref()
+                        .map(|v| (v.balance.mass, v.balance.charge, v.balance.site)),
+                ))
+            }
+            Event::Problem { .. } => None,
+        })
+        .collect()
+}
+
+proptest! {
+    #[test]
+    fn fmt_is_idempotent_and_keeps_every_verdict(file in arb_file(), unicode in any::<bool>()) {
+        use lacuna::format::{MarkSpelling, format_text};
+        let marks = if unicode { MarkSpelling::Unicode } else { MarkSpelling::Ascii };
+        // Duplicate names are an error before and after; formatting must not change that either.
+        let once = format_text(&file, marks).map_err(|e| TestCaseError::fail(format!("{file}\n{e:?}")))?;
+        let twice = format_text(&once, marks).map_err(|e| TestCaseError::fail(format!("{once}\n{e:?}")))?;
+        prop_assert_eq!(&twice, &once);
+        prop_assert_eq!(verdicts(&once), verdicts(&file), "{}\n--- formatted ---\n{}", file, once);
+    }
+}
