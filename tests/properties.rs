@@ -328,8 +328,11 @@ fn arb_file() -> impl Strategy<Value = String> {
         .prop_map(|lines| format!("host ZrO2\n{}\n", lines.join("\n")))
 }
 
+/// Mass, charge and site balance of one reaction.
+type Balances = (bool, bool, Option<bool>);
+
 /// Per reaction: line, ok, and the balances.
-fn verdicts(text: &str) -> Vec<(u32, bool, Option<(bool, bool, Option<bool>)>)> {
+fn verdicts(text: &str) -> Vec<(u32, bool, Option<Balances>)> {
     use lacuna::engine::{Checker, Event, Recording};
     let mut recording = Recording {
         events: Vec::new(),
