@@ -260,8 +260,23 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
         })
         .collect();
     let mut solutions: Vec<Vec<i64>> = Vec::new();
-    let total: usize = options.iter().map(|o| o.len().max(1)).product();
-    if total <= 100_000 && options.iter().all(|o| !o.is_empty()) {
+    // Saturating: fifty cations with three states each would overflow.
+    let total = options
+        .iter()
+        .fold(1usize, |acc, o| acc.saturating_mul(o.len().max(1)));
+    if total > 100_000 {
+        return Err(Diagnostic::new(
+            Code::HostAmbiguous,
+            0..0,
+            format!(
+                "`{}` has too many cations ({}) to try every combination of oxidation states",
+                crate::notation::quoted(text),
+                cations.len()
+            ),
+        )
+        .with_help(explicit_help()));
+    }
+    if options.iter().all(|o| !o.is_empty()) {
         let mut index = vec![0usize; cations.len()];
         'outer: loop {
             let sum: Q = cations

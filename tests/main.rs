@@ -3,6 +3,7 @@
 
 mod check_cli;
 mod docs;
+mod hostile;
 mod lint_cli;
 mod properties;
 mod support;

@@ -8,7 +8,7 @@
 mod parse;
 mod render;
 
-pub use parse::{parse_formula, parse_reaction, parse_species_text};
+pub use parse::{parse_formula, parse_reaction, parse_species_text, quoted};
 pub use render::{Style, render_reaction, render_species, render_term};
 
 use crate::number::Q;

@@ -25,6 +25,7 @@ pub fn parse_reaction(source: &str, within: Span) -> (Option<Reaction>, Vec<Diag
     let mut parser = Parser_ {
         src: source,
         diags: Vec::new(),
+        depth: 0,
     };
     let reaction = parser.reaction(within);
     (reaction, parser.diags)
@@ -36,6 +37,7 @@ pub fn parse_species_text(text: &str) -> Result<Term, Vec<Diagnostic>> {
     let mut parser = Parser_ {
         src: text,
         diags: Vec::new(),
+        depth: 0,
     };
     let trimmed = trim_span(text, 0..text.len());
     match parser.term(trimmed) {
@@ -50,6 +52,7 @@ pub fn parse_formula(source: &str, within: Span) -> Result<Formula, Vec<Diagnost
     let mut parser = Parser_ {
         src: source,
         diags: Vec::new(),
+        depth: 0,
     };
     let text = &source[within];
     match parser.formula(text, true) {
@@ -73,6 +76,29 @@ pub fn parse_formula(source: &str, within: Span) -> Result<Formula, Vec<Diagnost
 struct Parser_<'a> {
     src: &'a str,
     diags: Vec<Diagnostic>,
+    /// How deep in parenthesised formula groups the parser is.
+    depth: usize,
+}
+
+/// Formula groups nest at most this deep (`Ca3(PO4)2` needs one level); the
+/// limit keeps hostile input from exhausting the stack.
+const MAX_NESTING: usize = 16;
+
+/// User text quoted in a message: at most 32 characters, control characters escaped.
+pub fn quoted(text: &str) -> String {
+    let mut out = String::new();
+    for (i, c) in text.chars().enumerate() {
+        if i == 32 {
+            out.push('…');
+            break;
+        }
+        if c.is_control() {
+            out.extend(c.escape_default());
+        } else {
+            out.push(c);
+        }
+    }
+    out
 }
 
 /// Arrow spellings, longest first where one is a prefix of another.
@@ -330,7 +356,11 @@ impl<'a> Parser_<'a> {
     fn unexpected(&mut self, remaining: &str, entity: &Entity) {
         let span = self.span_of(remaining);
         let first = remaining.chars().next().unwrap_or(' ');
-        let d = self.error(Code::Syntax, span, format!("unexpected `{remaining}`"));
+        let d = self.error(
+            Code::Syntax,
+            span,
+            format!("unexpected `{}`", quoted(remaining)),
+        );
         if is_mark_char(first) {
             if let Entity::Compound(c) = entity {
                 d.span.start = c.span.start;
@@ -704,9 +734,9 @@ impl<'a> Parser_<'a> {
             };
             style.get_or_insert(mark_style);
             match value {
-                v if v > 0 => plus += v,
-                v if v < 0 => minus -= v,
-                _ => cross += 1,
+                v if v > 0 => plus = plus.saturating_add(v),
+                v if v < 0 => minus = minus.saturating_sub(v),
+                _ => cross = cross.saturating_add(1),
             }
             rest = &rest[len..];
         }
@@ -799,7 +829,19 @@ impl<'a> Parser_<'a> {
         loop {
             if groups && rest.starts_with('(') && phase_tag(rest).1.is_none() {
                 let close = matching_close(rest)?;
-                let (inner_rest, inner) = self.formula(&rest[1..close], true)?;
+                if self.depth >= MAX_NESTING {
+                    self.error(
+                        Code::Brackets,
+                        self.span_of(&rest[..1]),
+                        format!("groups nested deeper than {MAX_NESTING} levels"),
+                    )
+                    .help = Some("a formula needs at most a few levels of parentheses".into());
+                    return None;
+                }
+                self.depth += 1;
+                let inner = self.formula(&rest[1..close], true);
+                self.depth -= 1;
+                let (inner_rest, inner) = inner?;
                 if !inner_rest.is_empty() || inner.atoms.is_empty() {
                     self.error(
                         Code::Syntax,

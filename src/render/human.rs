@@ -31,6 +31,47 @@ impl<W: Write> HumanSink<W> {
     }
 }
 
+/// Lines longer than this many characters are shown as a window around the span.
+const MAX_SHOWN: usize = 160;
+
+/// The part of a line to show, with control characters made visible, and the
+/// underline's offset and width in characters.
+fn window(line: &str, start: usize, end: usize) -> (String, usize, usize) {
+    let start = start.min(line.len());
+    let end = end.clamp(start, line.len());
+    let before = line.get(..start).map_or(0, |s| s.chars().count());
+    let inside = line.get(start..end).map_or(0, |s| s.chars().count());
+    let total = line.chars().count();
+    let (from, to) = if total <= MAX_SHOWN {
+        (0, total)
+    } else {
+        let from = before.saturating_sub(40);
+        (
+            from,
+            (before + inside.min(MAX_SHOWN - 80) + 40)
+                .min(total)
+                .max(from),
+        )
+    };
+    let mut shown = String::new();
+    if from > 0 {
+        shown.push('…');
+    }
+    for c in line.chars().skip(from).take(to - from) {
+        shown.push(match c {
+            '\t' => ' ',
+            c if c.is_control() => '\u{fffd}',
+            c => c,
+        });
+    }
+    if to < total {
+        shown.push('…');
+    }
+    let lead = before - from + usize::from(from > 0);
+    let width = inside.min(to.saturating_sub(before)).max(1);
+    (shown, lead, width)
+}
+
 /// Writes one diagnostic with its source line and underline.
 pub fn write_diagnostic(
     out: &mut dyn Write,
@@ -61,14 +102,8 @@ pub fn write_diagnostic(
         d.column
     )?;
     writeln!(out, "{gutter} {}", p.frame("|"))?;
-    writeln!(out, "{} {} {}", p.frame(&number), p.frame("|"), line_text)?;
-    let start = d.span.start.min(line_text.len());
-    let end = d.span.end.clamp(start, line_text.len());
-    let lead = line_text.get(..start).map_or(0, |s| s.chars().count());
-    let width = line_text
-        .get(start..end)
-        .map_or(1, |s| s.chars().count())
-        .max(1);
+    let (shown, lead, width) = window(line_text, d.span.start, d.span.end);
+    writeln!(out, "{} {} {}", p.frame(&number), p.frame("|"), shown)?;
     let marks = p.severity(d.severity, &"^".repeat(width));
     let label = d
         .label
