@@ -11,7 +11,7 @@ use crate::host::{Host, SiteLookup};
 use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Species, Term};
 use crate::number::Q;
 use std::collections::HashMap;
-use std::hash::{Hash, Hasher};
+use std::hash::{BuildHasherDefault, Hash, Hasher};
 use std::path::{Path, PathBuf};
 
 /// The comment that silences codes on its own line: `# lacuna-allow: L501 V402`.
@@ -162,8 +162,9 @@ const REPEAT_TRACKING_LIMIT: usize = 100_000;
 pub struct FileLints {
     dot_style: Option<(MarkStyle, u32)>,
     other_style: Option<(MarkStyle, u32)>,
-    seen: HashMap<u64, u32>,
-    labels: HashMap<String, u32>,
+    seen: HashMap<u64, u32, KeyIsHash>,
+    /// Names seen so far, by hash (bounded memory on huge files).
+    labels: HashMap<u64, u32, KeyIsHash>,
     integer_reactions: u32,
     fractional_reactions: u32,
     repeat_limit_noted: bool,
@@ -180,13 +181,18 @@ impl FileLints {
     ) -> Vec<Diagnostic> {
         let mut out = Vec::new();
         if let Some((name, span)) = label {
-            match self.labels.get(name) {
+            let key = {
+                let mut h = fnv();
+                h.write(name.as_bytes());
+                h.finish()
+            };
+            match self.labels.get(&key) {
                 Some(first) => out.push(
                     Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
                         .with_help("names identify reactions in models and reports; give this one another name"),
                 ),
                 None => {
-                    self.labels.insert(name.to_string(), line);
+                    self.labels.insert(key, line);
                 }
             }
         }
@@ -201,7 +207,9 @@ impl FileLints {
 
     /// The names declared so far, for rules that check references.
     pub fn knows_label(&self, name: &str) -> bool {
-        self.labels.contains_key(name)
+        let mut h = fnv();
+        h.write(name.as_bytes());
+        self.labels.contains_key(&h.finish())
     }
 
     fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
@@ -316,6 +324,28 @@ fn for_each_species<'a>(reaction: &'a Reaction, f: &mut dyn FnMut(&'a Species)) 
     }
 }
 
+/// Maps keyed by a hash already computed need no second hashing.
+type KeyIsHash = BuildHasherDefault<PassThrough>;
+
+#[derive(Default)]
+struct PassThrough(u64);
+
+impl Hasher for PassThrough {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+
+    fn write(&mut self, bytes: &[u8]) {
+        for b in bytes {
+            self.0 = self.0.rotate_left(8) ^ u64::from(*b);
+        }
+    }
+
+    fn write_u64(&mut self, n: u64) {
+        self.0 = n;
+    }
+}
+
 /// A small, fast hasher (FNV-1a); repeat detection hashes every reaction,
 /// and SipHash's resistance to crafted collisions buys nothing here.
 struct Fnv(u64);
@@ -415,7 +445,8 @@ fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
             } else {
                 q / scale
             };
-            (ratio * Q::from_integer(sign)).hash(&mut h);
+            h.write_i64(ratio.numer().wrapping_mul(sign));
+            h.write_i64(*ratio.denom());
         }
         h.finish()
     };
