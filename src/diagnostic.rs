@@ -123,6 +123,16 @@ codes! {
         "A group such as `CO` is read as carbon and oxygen; if cobalt (`Co`) was meant, fix the case.";
     InterstitialVacancy = "V411", Error, "vacancy on an interstitial site",
         "An interstitial site is empty in the perfect crystal, so it cannot hold a vacancy.";
+    CsvFormat = "F901", Error, "measurement file format",
+        "A measurement file is comma-separated text (semicolons or tabs are also recognised from the header line) with one header line and one measurement per row; `#` starts a comment line. A row must have as many fields as the header. See grammar/measurements.md.";
+    CsvColumn = "F902", Error, "measurement columns",
+        "The header must name exactly one temperature column (`T_K` or `T_C`), one oxygen pressure column (`pO2_bar`, `pO2_atm`, `pO2_Pa`, `log10_pO2_bar` or `log10_pO2_atm`) and one conductivity column (`sigma_S_per_cm` or `sigma_S_per_m`); `sigma_err` and `isotherm` are optional. Names are case-insensitive. See grammar/measurements.md.";
+    CsvNumber = "F903", Error, "measurement value",
+        "Every measurement cell holds a finite decimal number such as `973.15`, `1e-20` or `-3.5`.";
+    CsvRange = "F904", Error, "measurement out of range",
+        "Absolute temperatures, oxygen partial pressures and conductivities must be positive, because the fit works with their logarithms; uncertainties must be positive. A zero or negative value is usually a unit or sign slip, or a reading below the instrument's floor that should be left out.";
+    CsvIsotherm = "F905", Error, "isotherm too small",
+        "A slope needs at least two oxygen pressures per isotherm, so an isotherm with a single row, or with all rows at one pressure, cannot be fitted. Add points, group rows with an `isotherm` column, or remove the row.";
 }
 
 impl fmt::Display for Code {
