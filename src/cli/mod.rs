@@ -3,6 +3,7 @@
 //! problems, 2 usage or I/O error.
 
 mod check;
+mod fit;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -22,6 +23,9 @@ pub struct Cli {
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
+    /// Fit conductivity versus pO2 and temperature: regime slopes, ionic and
+    /// electronic parts, activation energies.
+    Fit(fit::FitArgs),
 }
 
 /// Output format of `check`.
@@ -66,6 +70,7 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Fit(args) => fit::run(&args),
     }
 }
 

@@ -147,7 +147,17 @@ pub struct SegmentReport {
     pub chi2_reduced: Option<f64>,
     #[serde(rename = "match")]
     pub matching: SlopeMatch,
+    /// From the decomposition: the term carrying most of σ over this piece
+    /// (`ion`, `n`, `p`) and its smallest share there. Below
+    /// `DOMINANT_SHARE` the piece is a transition and its slope apparent.
+    pub dominant: Option<(String, f64)>,
+    /// Carriers are mixed over this piece: its slope is not a regime's.
+    pub mixed: bool,
 }
+
+/// A piece whose leading term carries less than this share of σ somewhere
+/// is reported as a transition between regimes.
+pub const DOMINANT_SHARE: f64 = 0.9;
 
 /// A measured point with its place in the fit.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -410,6 +420,8 @@ fn analyse_isotherm(
             rms_log10: piece.fit.rms,
             chi2_reduced: piece.fit.chi2_reduced,
             matching,
+            dominant: None,
+            mixed: false,
         });
     }
     let po2: Vec<f64> = points.iter().map(|p| p.po2_bar).collect();
@@ -433,6 +445,25 @@ fn analyse_isotherm(
         Ok(d) => {
             for (point, r) in data.iter_mut().zip(&d.residuals_log10) {
                 point.residual_log10 = Some(*r);
+            }
+            if !(d.poor || d.systematic) {
+                for (index, seg) in segments.iter_mut().enumerate() {
+                    seg.dominant = dominant_term(&d, data.iter().filter(|p| p.segment == index));
+                    seg.mixed = seg
+                        .dominant
+                        .as_ref()
+                        .is_some_and(|(_, share)| *share < DOMINANT_SHARE);
+                    if seg.mixed && seg.matching.verdict != regimes::Verdict::NoMatch {
+                        notes.push(format!(
+                            "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
+                            iso.label,
+                            report::sci(seg.po2_min_bar),
+                            report::sci(seg.po2_max_bar),
+                            seg.slope,
+                            regimes::slope_text(seg.matching.nearest)
+                        ));
+                    }
+                }
             }
             for (name, b) in [("σ_n = σ_ion", d.boundary_n), ("σ_p = σ_ion", d.boundary_p)] {
                 if let Some(b) = b.filter(|b| b.extrapolated) {
@@ -484,6 +515,32 @@ fn analyse_isotherm(
         decomposition_problem,
         data,
     }
+}
+
+/// The term with the largest mean share of σ over `points`, and its
+/// smallest share among them.
+fn dominant_term<'a>(
+    d: &Decomposition,
+    points: impl Iterator<Item = &'a DataPoint>,
+) -> Option<(String, f64)> {
+    let shares: Vec<[f64; 3]> = points
+        .map(|p| {
+            let (i, n, q) = d.terms(p.po2_bar);
+            let total = i + n + q;
+            if total > 0.0 {
+                [i / total, n / total, q / total]
+            } else {
+                [0.0; 3]
+            }
+        })
+        .collect();
+    if shares.is_empty() {
+        return None;
+    }
+    let mean = |k: usize| shares.iter().map(|s| s[k]).sum::<f64>();
+    let k = (0..3).max_by(|&a, &b| mean(a).total_cmp(&mean(b)))?;
+    let min = shares.iter().map(|s| s[k]).fold(1.0f64, f64::min);
+    Some((["ion", "n", "p"][k].to_string(), min))
 }
 
 type AcrossTemperatures = (Vec<ArrheniusOutcome>, Vec<Enthalpy>, Vec<String>);

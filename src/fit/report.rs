@@ -64,12 +64,19 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         "regimes: {}; decomposition in regime {} ({}):",
         r.regimes_source, r.regime.name, r.regime.neutrality
     )?;
+    let term = |name: &str, q: crate::number::Q| {
+        if q == crate::number::Q::from_integer(0) {
+            name.to_string()
+        } else {
+            format!("{name}·pO2^({})", slope_text(q))
+        }
+    };
     writeln!(
         out,
-        "  σ = σ_ion°·pO2^({}) + σ_n°·pO2^({}) + σ_p°·pO2^({}), pO2 in bar, non-negative terms",
-        slope_text(e.ion),
-        slope_text(e.n),
-        slope_text(e.p)
+        "  σ = {} + {} + {}, pO2 in bar, non-negative terms",
+        term("σ_ion°", e.ion),
+        term("σ_n°", e.n),
+        term("σ_p°", e.p)
     )?;
     for iso in &r.isotherms {
         writeln!(out)?;
@@ -127,6 +134,7 @@ fn write_isotherm(
     for s in &iso.segments {
         let verdict = s.matching.verdict;
         let verdict_text = match verdict {
+            _ if s.mixed => "transition".to_string(),
             Verdict::Match => p.good(verdict.as_str()),
             Verdict::NoMatch => p.bad(verdict.as_str()),
             _ => verdict.as_str().to_string(),
@@ -136,7 +144,20 @@ fn write_isotherm(
         } else if s.matching.predicted_by.is_empty() {
             "no regime of the model".to_string()
         } else {
-            s.matching.predicted_by.join("; ")
+            let list = &s.matching.predicted_by;
+            let shown = list.iter().take(4).cloned().collect::<Vec<_>>().join("; ");
+            if list.len() > 4 {
+                format!("{shown}; {} more", list.len() - 4)
+            } else {
+                shown
+            }
+        };
+        let predicted = match &s.dominant {
+            Some((term, share)) if s.mixed => format!(
+                "none: carriers mixed ({term} carries down to {:.0} %), an apparent slope",
+                share * 100.0
+            ),
+            _ => predicted,
         };
         let also = if verdict == Verdict::Ambiguous {
             format!(
@@ -257,7 +278,7 @@ fn write_isotherm(
 fn write_arrhenius(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result<()> {
     writeln!(
         out,
-        "{} ({} fitted; k_B = {} eV/K, 1 eV = {} kJ/mol)",
+        "{} ({} fitted; k_B = {:e} eV/K, 1 eV = {} kJ/mol)",
         p.strong("arrhenius"),
         r.arrhenius_form.describe(),
         r.constants.k_b_ev_per_k,
@@ -347,13 +368,13 @@ pub fn write_curves_csv(out: &mut dyn Write, r: &FitReport) -> io::Result<()> {
                     let c = d.curve_point(po2);
                     writeln!(
                         out,
-                        "{label},{},{:e},{:e},{:e},{:e},{:e},{},{seg_index},{seg_value}",
+                        "{label},{:.2},{:e},{:e},{:e},{:e},{:e},{},{seg_index},{seg_value}",
                         iso.temperature_k, po2, c.sigma, c.sigma_ion, c.sigma_n, c.sigma_p, c.t_ion
                     )?;
                 }
                 None => writeln!(
                     out,
-                    "{label},{},{:e},,,,,,{seg_index},{seg_value}",
+                    "{label},{:.2},{:e},,,,,,{seg_index},{seg_value}",
                     iso.temperature_k, po2
                 )?,
             }

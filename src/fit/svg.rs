@@ -147,6 +147,7 @@ pub fn render(r: &FitReport) -> String {
                 py(yb)
             );
             let label = match seg.matching.verdict {
+                _ if seg.mixed => format!("transition ({:+.3})", seg.slope),
                 Verdict::Match => {
                     format!("{} ({:+.3})", slope_text(seg.matching.nearest), seg.slope)
                 }
