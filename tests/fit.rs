@@ -300,3 +300,78 @@ fn mobility_activation_is_subtracted_when_given() {
     // ΔH_red = 2·(E_a − E_μ): giving E_μ = 0.3 eV lowers it by 0.6 eV.
     assert!((red(&base) - red(&with) - 0.6).abs() < 1e-9);
 }
+
+/// The lines of every fenced block with the given info string.
+fn blocks(markdown: &str, info: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut current: Option<String> = None;
+    for line in markdown.lines() {
+        if let Some(tag) = line.strip_prefix("```") {
+            match current.take() {
+                Some(block) => out.push(block),
+                None if tag.trim() == info => current = Some(String::new()),
+                None => {}
+            }
+            continue;
+        }
+        if let Some(block) = current.as_mut() {
+            block.push_str(line);
+            block.push('\n');
+        }
+    }
+    out
+}
+
+#[test]
+fn every_measurement_example_in_the_grammar_reads_or_is_refused() {
+    let path = format!("{}/grammar/measurements.md", env!("CARGO_MANIFEST_DIR"));
+    let doc = std::fs::read_to_string(path).unwrap();
+    let valid = blocks(&doc, "csv");
+    let invalid = blocks(&doc, "csv-invalid");
+    assert!(valid.len() >= 2 && invalid.len() >= 2);
+    for block in valid {
+        lacuna()
+            .args(["fit", "-"])
+            .write_stdin(block)
+            .assert()
+            .code(0);
+    }
+    for block in invalid {
+        lacuna()
+            .args(["fit", "-"])
+            .write_stdin(block)
+            .assert()
+            .code(1);
+    }
+}
+
+#[test]
+fn every_walkthrough_command_runs() {
+    let path = format!("{}/grammar/fit-walkthrough.md", env!("CARGO_MANIFEST_DIR"));
+    let doc = std::fs::read_to_string(path).unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let mut ran = 0;
+    for block in blocks(&doc, "console") {
+        for line in block.lines() {
+            let Some(args) = line.strip_prefix("$ lacuna ") else {
+                continue;
+            };
+            // Run in a scratch folder so written files stay out of the tree.
+            let words: Vec<String> = args
+                .split_whitespace()
+                .map(|w| match w.strip_prefix("examples/") {
+                    Some(rest) => format!("{}/examples/{rest}", env!("CARGO_MANIFEST_DIR")),
+                    None => w.to_string(),
+                })
+                .collect();
+            lacuna()
+                .args(&words)
+                .current_dir(dir.path())
+                .assert()
+                .code(0);
+            ran += 1;
+        }
+    }
+    assert!(ran >= 3);
+    assert!(dir.path().join("fit.svg").exists());
+}

@@ -286,6 +286,20 @@ pub fn analyse(
     }
     let (arrhenius, enthalpies, interpretations) =
         across_temperatures(&isotherms, regime, model, options);
+    for o in &arrhenius {
+        if let Some(f) = &o.fit {
+            if f.activation_ev_se
+                .is_some_and(|se| se > 0.25 * f.activation_ev.abs().max(0.1))
+            {
+                notes.push(format!(
+                    "the activation energy of the {} term is poorly determined ({:.2} ± {:.2} eV): the term is weak in these data, so read it and any enthalpy from it as an order of magnitude",
+                    o.component,
+                    f.activation_ev,
+                    f.activation_ev_se.unwrap_or(0.0)
+                ));
+            }
+        }
+    }
     if isotherms.len() < 2 {
         notes.push(
             "one isotherm only: no Arrhenius fits; measure at two or more temperatures".into(),

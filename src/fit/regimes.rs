@@ -119,8 +119,7 @@ impl ModelRegimes {
         let regimes = vec![
             Regime {
                 name: ACCEPTOR_FIXED.into(),
-                neutrality: "[A′] = 2[V_O••] (acceptor-doped, vacancies fixed by the dopant)"
-                    .into(),
+                neutrality: "[A′] = 2[V_O••]: acceptor-doped, vacancies fixed by the dopant".into(),
                 ionic_defect: "V_O••".into(),
                 n: law(q(-1, 4), &[("red", q(1, 2))]),
                 p: law(q(1, 4), &[("ox", q(1, 2))]),
@@ -128,7 +127,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "reduced-intrinsic".into(),
-                neutrality: "n = 2[V_O••] (reduction of the pure oxide)".into(),
+                neutrality: "n = 2[V_O••]: reduction of the pure oxide".into(),
                 ionic_defect: "V_O••".into(),
                 n: law(q(-1, 6), &[("red", q(1, 3))]),
                 p: law(q(1, 6), &[("band", q(1, 1)), ("red", q(-1, 3))]),
@@ -136,7 +135,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "reduced-single".into(),
-                neutrality: "n = [V_O•] (reduction to singly ionised vacancies)".into(),
+                neutrality: "n = [V_O•]: reduction to singly ionised vacancies".into(),
                 ionic_defect: "V_O•".into(),
                 n: law(q(-1, 4), &[("red1", q(1, 2))]),
                 p: law(q(1, 4), &[("band", q(1, 1)), ("red1", q(-1, 2))]),
@@ -144,7 +143,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "electronic-intrinsic".into(),
-                neutrality: "n = p (band-gap excitation dominates)".into(),
+                neutrality: "n = p: band-gap excitation dominates".into(),
                 ionic_defect: "V_O••".into(),
                 n: law(q(0, 1), &[("band", q(1, 2))]),
                 p: law(q(0, 1), &[("band", q(1, 2))]),
@@ -152,7 +151,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "donor-electronic".into(),
-                neutrality: "[D•] = n (donor-doped, electronic compensation)".into(),
+                neutrality: "[D•] = n: donor-doped, electronic compensation".into(),
                 ionic_defect: "V_O••".into(),
                 n: law(q(0, 1), &[]),
                 p: law(q(0, 1), &[("band", q(1, 1))]),
@@ -160,7 +159,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "acceptor-electronic".into(),
-                neutrality: "[A′] = p (acceptor-doped, hole compensation)".into(),
+                neutrality: "[A′] = p: acceptor-doped, hole compensation".into(),
                 ionic_defect: "V_O••".into(),
                 n: law(q(0, 1), &[("band", q(1, 1))]),
                 p: law(q(0, 1), &[]),
@@ -168,7 +167,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "donor-ionic".into(),
-                neutrality: "[D•] = 2[V_M″] (donor-doped, cation-vacancy compensation)".into(),
+                neutrality: "[D•] = 2[V_M″]: donor-doped, cation-vacancy compensation".into(),
                 ionic_defect: "V_M″".into(),
                 n: law(q(-1, 4), &[("band", q(1, 1)), ("oxm", q(-1, 2))]),
                 p: law(q(1, 4), &[("oxm", q(1, 2))]),
@@ -176,7 +175,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "oxidised-intrinsic".into(),
-                neutrality: "p = 2[V_M″] (oxidation of the pure oxide)".into(),
+                neutrality: "p = 2[V_M″]: oxidation of the pure oxide".into(),
                 ionic_defect: "V_M″".into(),
                 n: law(q(-1, 6), &[("band", q(1, 1)), ("oxm", q(-1, 3))]),
                 p: law(q(1, 6), &[("oxm", q(1, 3))]),
@@ -184,7 +183,7 @@ impl ModelRegimes {
             },
             Regime {
                 name: "oxidised-single".into(),
-                neutrality: "p = [V_M′] (oxidation to singly charged cation vacancies)".into(),
+                neutrality: "p = [V_M′]: oxidation to singly charged cation vacancies".into(),
                 ionic_defect: "V_M′".into(),
                 n: law(q(-1, 4), &[("band", q(1, 1)), ("oxm1", q(-1, 2))]),
                 p: law(q(1, 4), &[("oxm1", q(1, 2))]),

@@ -128,7 +128,7 @@ fn write_isotherm(
     )?;
     writeln!(
         out,
-        "    {:<22} {:>3}  {:<22} {:>7}  {:<10} regimes predicting it",
+        "    {:<22} {:>3}  {:<22} {:>7}  {:<11} regimes predicting it",
         "pO2 range (bar)", "n", "slope ± SE", "nearest", "verdict"
     )?;
     for s in &iso.segments {
@@ -175,7 +175,7 @@ fn write_isotherm(
         };
         writeln!(
             out,
-            "    {:<22} {:>3}  {:<22} {:>7}  {:<10} {predicted}{also}",
+            "    {:<22} {:>3}  {:<22} {:>7}  {:<11} {predicted}{also}",
             format!("{} … {}", sci(s.po2_min_bar), sci(s.po2_max_bar)),
             s.points,
             pm(s.slope, s.slope_se, 4),
