@@ -375,3 +375,36 @@ fn every_walkthrough_command_runs() {
     assert!(ran >= 3);
     assert!(dir.path().join("fit.svg").exists());
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(64))]
+
+    /// Arbitrary text never makes the reader or the analysis panic.
+    #[test]
+    fn arbitrary_files_never_panic(body in "[0-9eE.,;\\-# a-zT_CKpO2sigmabrt\n]{0,300}") {
+        let text = format!("T_K,pO2_bar,sigma_S_per_cm\n{body}");
+        if let Ok(m) = lacuna::fit::csv_input::read_measurements(&text, "p.csv") {
+            let _ = lacuna::fit::analyse(&m, None, &lacuna::fit::FitOptions::default());
+        }
+        let _ = lacuna::fit::csv_input::read_measurements(&body, "p.csv");
+    }
+
+    /// Any positive data with two or more pressures per isotherm fit.
+    #[test]
+    fn positive_data_always_fit(
+        values in proptest::collection::vec((-30.0f64..2.0, -8.0f64..2.0), 2..40),
+    ) {
+        let mut text = String::from("T_K,log10_pO2_bar,sigma_S_per_cm\n");
+        for (lp, ls) in &values {
+            text.push_str(&format!("1000,{lp},{}\n", 10f64.powf(*ls)));
+        }
+        if let Ok(m) = lacuna::fit::csv_input::read_measurements(&text, "p.csv") {
+            let r = lacuna::fit::analyse(&m, None, &lacuna::fit::FitOptions::default());
+            proptest::prop_assert!(r.is_ok());
+            let r = r.unwrap();
+            let _ = lacuna::fit::svg::render(&r);
+            let mut sink = Vec::new();
+            lacuna::fit::report::write_table(&mut sink, &r, lacuna::render::Palette::PLAIN).unwrap();
+        }
+    }
+}

@@ -84,6 +84,9 @@ pub struct Segmentation {
 /// and reward extra pieces: 1e-6 decades rms.
 const WRSS_FLOOR_PER_POINT: f64 = 1e-12;
 
+/// How far (in points) one sweep of the knot search looks from a knot.
+const KNOT_WINDOW: usize = 12;
+
 /// A continuous broken line fitted with knots between points.
 struct Joined {
     /// β0, β1, then one slope change per knot.
@@ -226,6 +229,13 @@ pub fn segment(
                 } else {
                     breaks[idx + 1].0.saturating_sub(m)
                 };
+                // A local window: the starting breaks are already near
+                // the optimum, and this keeps long isotherms fast.
+                let here = breaks[idx].0;
+                let (lo, hi) = (
+                    lo.max(here.saturating_sub(KNOT_WINDOW)),
+                    hi.min(here + KNOT_WINDOW),
+                );
                 for cand in lo..=hi {
                     for on_point in [false, true] {
                         // A knot on a point needs distinct neighbours on both sides.
