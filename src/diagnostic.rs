@@ -135,6 +135,16 @@ codes! {
         "Fractional coefficients (`1/2 O2(g)`) are fine, but a file that otherwise writes whole numbers reads more easily when all its reactions do. Multiply through, or keep fractions throughout.";
     ImplicitNeutral = "L506", Warning, "implicit neutral mark",
         "A vacancy or interstitial written without any mark reads as neutral (`V_O` is `V_O×`). On a charged site the ionised form is more usual, so an unmarked defect is often a forgotten mark; write `×` when the neutral defect is meant.";
+    CsvFormat = "F901", Error, "measurement file format",
+        "A measurement file is comma-separated text (semicolons or tabs are also recognised from the header line) with one header line and one measurement per row; `#` starts a comment line. A row must have as many fields as the header. See grammar/measurements.md.";
+    CsvColumn = "F902", Error, "measurement columns",
+        "The header must name exactly one temperature column (`T_K` or `T_C`), one oxygen pressure column (`pO2_bar`, `pO2_atm`, `pO2_Pa`, `log10_pO2_bar` or `log10_pO2_atm`) and one conductivity column (`sigma_S_per_cm` or `sigma_S_per_m`); `sigma_err` and `isotherm` are optional. Names are case-insensitive. See grammar/measurements.md.";
+    CsvNumber = "F903", Error, "measurement value",
+        "Every measurement cell holds a finite decimal number such as `973.15`, `1e-20` or `-3.5`.";
+    CsvRange = "F904", Error, "measurement out of range",
+        "Absolute temperatures, oxygen partial pressures and conductivities must be positive, because the fit works with their logarithms; uncertainties must be positive. A zero or negative value is usually a unit or sign slip, or a reading below the instrument's floor that should be left out.";
+    CsvIsotherm = "F905", Error, "isotherm too small",
+        "A slope needs at least two oxygen pressures per isotherm, so an isotherm with a single row, or with all rows at one pressure, cannot be fitted. Add points, group rows with an `isotherm` column, or remove the row.";
 }
 
 impl fmt::Display for Code {

@@ -11,6 +11,7 @@ pub mod diagnostic;
 pub mod document;
 pub mod elements;
 pub mod engine;
+pub mod fit;
 pub mod format;
 pub mod host;
 pub mod lint;

@@ -3,6 +3,7 @@
 
 mod check_cli;
 mod docs;
+mod fit;
 mod hostile;
 mod lint_cli;
 mod properties;

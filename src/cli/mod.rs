@@ -4,6 +4,7 @@
 
 mod check;
 mod explain;
+mod fit;
 mod fmt;
 
 use crate::host::Host;
@@ -28,6 +29,9 @@ pub enum Command {
     Fmt(fmt::FmtArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
+    /// Fit conductivity versus pO2 and temperature: regime slopes, ionic and
+    /// electronic parts, activation energies.
+    Fit(fit::FitArgs),
 }
 
 /// Output format of `check`.
@@ -74,6 +78,7 @@ pub fn main() -> ExitCode {
         Command::Check(args) => check::run(&args),
         Command::Fmt(args) => fmt::run(&args),
         Command::Explain(args) => explain::run(&args),
+        Command::Fit(args) => fit::run(&args),
     }
 }
 
