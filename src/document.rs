@@ -112,7 +112,7 @@ mod tests {
         assert_eq!(classify(""), Line::Blank);
         assert_eq!(classify("   "), Line::Blank);
         assert_eq!(classify("# a note"), Line::Comment);
-        assert_eq!(classify("host ZrO2  # cubic"), Line::Host(4..10));
+        assert_eq!(classify("host ZrO2  # cubic"), Line::Host(4..9));
         assert_eq!(
             classify("O_O -> V_O.. + 2e' + 1/2 O2(g)"),
             Line::Reaction {

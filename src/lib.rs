@@ -15,3 +15,4 @@ pub mod host;
 pub mod notation;
 pub mod number;
 pub mod render;
+pub mod typeset;
