@@ -15,4 +15,5 @@ pub mod host;
 pub mod notation;
 pub mod number;
 pub mod render;
+pub mod repl;
 pub mod typeset;

@@ -3,6 +3,8 @@
 //! problems, 2 usage or I/O error.
 
 mod check;
+mod repl;
+mod typeset;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -12,16 +14,22 @@ use std::process::ExitCode;
 
 /// Point-defect chemistry in Kröger–Vink notation.
 #[derive(Debug, Parser)]
-#[command(name = "lacuna", version, about, long_about = None, arg_required_else_help = true)]
+///
+/// With no command on a terminal, starts the workbench (`lacuna repl`).
+#[command(name = "lacuna", version, about, long_about = None)]
 pub struct Cli {
     #[command(subcommand)]
-    pub command: Command,
+    pub command: Option<Command>,
 }
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
+    /// Work interactively: type reactions, check, name, save and typeset them.
+    Repl(repl::ReplArgs),
+    /// Write reactions and species for manuscripts (LaTeX, Unicode, HTML, ...).
+    Typeset(typeset::TypesetArgs),
 }
 
 /// Output format of `check`.
@@ -65,7 +73,17 @@ impl ColorChoice {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        Command::Check(args) => check::run(&args),
+        Some(Command::Check(args)) => check::run(&args),
+        Some(Command::Repl(args)) => repl::run(&args),
+        Some(Command::Typeset(args)) => typeset::run(&args),
+        // No command: the workbench on a terminal, else help and a usage error.
+        None if repl::on_terminal() => repl::run(&repl::ReplArgs::bare()),
+        None => {
+            use clap::CommandFactory;
+            let help = Cli::command().render_help();
+            let _ = write!(io::stderr(), "{help}");
+            ExitCode::from(2)
+        }
     }
 }
 
