@@ -52,8 +52,8 @@ fn write_count(out: &mut String, n: Q, style: Style) {
             let _ = write!(out, "<sub>{text}</sub>");
         }
         // Subscript digits read back only as whole numbers (`O₂`, not `La₀.₉`).
-        Style::Unicode if n.is_integer() => out.push_str(&subscript_digits(&text)),
-        Style::Ascii | Style::Unicode => out.push_str(&text),
+        Style::Unicode => out.push_str(&subscript_digits(&text)),
+        Style::Ascii => out.push_str(&text),
     }
 }
 
@@ -94,6 +94,13 @@ fn decimal_text(q: Q) -> String {
 }
 
 fn write_formula(out: &mut String, formula: &Formula, style: Style) {
+    // Unicode subscripts only for whole counts; a formula with a decimal
+    // count keeps all its digits on the line rather than mixing the two.
+    let style = if style == Style::Unicode && formula.atoms.iter().any(|(_, n)| !n.is_integer()) {
+        Style::Ascii
+    } else {
+        style
+    };
     for (z, n) in &formula.atoms {
         out.push_str(symbol(*z));
         write_count(out, *n, style);

@@ -401,7 +401,9 @@ fn style_of(reaction: &Reaction) -> Style {
 }
 
 /// Whether a line asks for more input: it ends with `+`, an arrow or a lone
-/// `\`, or leaves a bracket open. Commands and comments never continue.
+/// `\\` (a LaTeX row break `\\\\` does not count). Commands and comments never
+/// continue. Open brackets do not continue a line: one typo would swallow
+/// every line after it.
 pub fn continues(text: &str) -> bool {
     let last = text.lines().last().unwrap_or("").trim_end();
     let first = text.trim_start();
@@ -423,26 +425,7 @@ pub fn continues(text: &str) -> bool {
     ]
     .iter()
     .any(|end| last.ends_with(end));
-    lone_backslash || open_end || bracket_depth(text) > 0
-}
-
-/// Open brackets minus closed ones, not counting LaTeX's `\{` and `\}`.
-fn bracket_depth(text: &str) -> i64 {
-    let mut depth = 0i64;
-    let mut escaped = false;
-    for c in text.chars() {
-        if escaped {
-            escaped = false;
-            continue;
-        }
-        match c {
-            '\\' => escaped = true,
-            '(' | '{' | '[' => depth += 1,
-            ')' | '}' | ']' => depth -= 1,
-            _ => {}
-        }
-    }
-    depth
+    lone_backslash || open_end
 }
 
 /// Splits a block of input into logical lines: a line that `continues` is
@@ -926,22 +909,53 @@ fn verdict_text(p: Palette, verdict: Option<&Verdict>, diagnostics: &[Diagnostic
     p.good("✓ balanced")
 }
 
-/// The command name nearest to a mistyped one (same first letter, or a
-/// prefix), for "did you mean".
+/// The command name nearest to a mistyped one (one it starts, else one at
+/// most two edits away), for "did you mean".
 fn closest_command(word: &str) -> Option<&'static str> {
     if word.is_empty() {
         return None;
     }
-    COMMANDS
-        .iter()
-        .flat_map(|c| std::iter::once(c.name).chain(c.aliases.iter().copied()))
-        .find(|name| name.starts_with(word) || word.starts_with(name))
+    let names = || {
+        COMMANDS
+            .iter()
+            .flat_map(|c| std::iter::once(c.name).chain(c.aliases.iter().copied()))
+    };
+    names()
+        .find(|name| name.starts_with(word) && word.len() >= 2)
         .or_else(|| {
-            COMMANDS
-                .iter()
-                .map(|c| c.name)
-                .find(|name| name.chars().next() == word.chars().next())
+            names()
+                .map(|name| (edit_distance(word, name), name))
+                .filter(|(d, _)| *d <= 2)
+                .min_by_key(|(d, _)| *d)
+                .map(|(_, name)| name)
         })
+        .and_then(|name| find_command(name).map(|c| c.name))
+}
+
+/// Levenshtein distance, counting an exchange of two neighbours as one edit.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let a: Vec<char> = a.chars().collect();
+    let b: Vec<char> = b.chars().collect();
+    let mut rows = vec![vec![0usize; b.len() + 1]; a.len() + 1];
+    for (i, row) in rows.iter_mut().enumerate() {
+        row[0] = i;
+    }
+    for (j, cell) in rows[0].iter_mut().enumerate() {
+        *cell = j;
+    }
+    for i in 1..=a.len() {
+        for j in 1..=b.len() {
+            let cost = usize::from(a[i - 1] != b[j - 1]);
+            let mut best = (rows[i - 1][j] + 1)
+                .min(rows[i][j - 1] + 1)
+                .min(rows[i - 1][j - 1] + cost);
+            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
+                best = best.min(rows[i - 2][j - 2] + 1);
+            }
+            rows[i][j] = best;
+        }
+    }
+    rows[a.len()][b.len()]
 }
 
 #[cfg(test)]

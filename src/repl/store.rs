@@ -121,6 +121,8 @@ pub(super) fn load(
                     });
                     host = Some(slot.clone());
                     declared = Some(slot);
+                    // Kept in place, so saving writes the file's own layout.
+                    preamble.push(line);
                 }
                 Err(diagnostics) => {
                     for d in diagnostics {
@@ -218,22 +220,26 @@ pub(super) fn load(
     Ok(())
 }
 
-/// The reaction file for the session: host lines where the host changes,
-/// each reaction's kept lines, its `label: reaction` line, then the trailer.
+/// The reaction file for the session: each reaction's kept lines, a `host`
+/// line where the host changes, its `label: reaction` line, then the
+/// trailer. A `host` line kept from a loaded file counts as written, so a
+/// loaded file comes back in its own layout.
 pub(super) fn file_text(session: &Session) -> String {
     let mut text = String::new();
-    let mut current: Option<&Rc<HostSlot>> = None;
+    let mut current: Option<Host> = None;
     for entry in &session.entries {
         for line in &entry.preamble {
+            if let Line::Host(span) = document::classify(line) {
+                current = Host::parse(line, span).ok();
+            }
             text.push_str(line);
             text.push('\n');
         }
         if let Some(slot) = &entry.host {
-            let same = current.is_some_and(|c| Rc::ptr_eq(c, slot) || c.host == slot.host);
-            if !same {
+            if current.as_ref() != Some(&slot.host) {
                 text.push_str(&slot.line);
                 text.push('\n');
-                current = Some(slot);
+                current = Some(slot.host.clone());
             }
         }
         text.push_str(&entry.file_line());

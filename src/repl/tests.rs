@@ -180,7 +180,7 @@ fn newcomers_words_work() {
 fn lines_continue_after_plus_arrow_or_open_bracket() {
     assert!(continues("O_O ->"));
     assert!(continues("O_O -> V_O.. +"));
-    assert!(continues("(Y_Zr' V_O.."));
+    assert!(!continues("(Y_Zr' V_O.."));
     assert!(continues(r"O_O \"));
     assert!(!continues(r"O_O -> V_O.. \\"));
     assert!(!continues("O_O -> V_O.."));
@@ -262,6 +262,15 @@ fn the_vocabulary_has_sites_species_and_labels() {
         magnetite.vocabulary().sites,
         vec!["{Fe:A}", "{Fe:B}", "O", "i"]
     );
+}
+
+#[test]
+fn mistyped_commands_get_a_suggestion() {
+    assert_eq!(closest_command("hots"), Some("host"));
+    assert_eq!(closest_command("lst"), Some("list"));
+    assert_eq!(closest_command("typ"), Some("typeset"));
+    assert_eq!(closest_command("frobnicate"), None);
+    assert_eq!(edit_distance("kitten", "sitting"), 3);
 }
 
 #[test]
