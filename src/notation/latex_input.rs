@@ -66,6 +66,7 @@ pub fn normalise(source: &str) -> Result<Normalised, Diagnostic> {
         map: Vec::with_capacity(source.len()),
         over_arrow: None,
         notes: Vec::new(),
+        lead: None,
     };
     reader.run(0..source.len(), Mode::Math)?;
     // Trim the spaces that layout commands leave at either end.
@@ -143,6 +144,10 @@ struct Reader<'a> {
     map: Vec<Span>,
     over_arrow: Option<(String, Span)>,
     notes: Vec<Diagnostic>,
+    /// Where markup that wrote nothing itself began (`\mathrm{`, `{`, `$`):
+    /// the next byte written is mapped from there, so a diagnostic on it
+    /// underlines the markup too.
+    lead: Option<usize>,
 }
 
 fn error(code: Code, span: Span, message: impl Into<String>) -> Diagnostic {
@@ -151,6 +156,10 @@ fn error(code: Code, span: Span, message: impl Into<String>) -> Diagnostic {
 
 impl Reader<'_> {
     fn emit(&mut self, text: &str, from: Span) {
+        let from = match self.lead.take() {
+            Some(l) if l < from.start => l..from.end,
+            _ => from,
+        };
         self.out.push_str(text);
         for _ in 0..text.len() {
             self.map.push(from.clone());
@@ -164,6 +173,21 @@ impl Reader<'_> {
         }
         self.emit(text, from.clone());
         self.emit(" ", from);
+    }
+
+    /// Markup starts at `at` and writes nothing yet.
+    fn begin_markup(&mut self, at: usize) {
+        self.lead = Some(self.lead.map_or(at, |l| l.min(at)));
+    }
+
+    /// Markup that began when the output was `before` bytes long ends at
+    /// `end`: the last byte it wrote is mapped up to there (a closing brace).
+    fn end_markup(&mut self, before: usize, end: usize) {
+        if self.out.len() > before {
+            if let Some(last) = self.map.last_mut() {
+                last.end = last.end.max(end);
+            }
+        }
     }
 
     fn char_at(&self, i: usize) -> Option<char> {
@@ -306,7 +330,10 @@ impl Reader<'_> {
                     }
                     i = next;
                 }
-                '$' | '&' => i += 1,
+                '$' | '&' => {
+                    self.begin_markup(i);
+                    i += 1;
+                }
                 '%' => return Ok(()),
                 '~' => {
                     self.emit(" ", here);
@@ -314,7 +341,10 @@ impl Reader<'_> {
                 }
                 '{' => {
                     let close = self.closing_brace(i, end)?;
+                    let before = self.out.len();
+                    self.begin_markup(i);
                     self.run(i + 1..close, mode)?;
+                    self.end_markup(before, close + 1);
                     i = close + 1;
                 }
                 '}' => {
@@ -357,6 +387,7 @@ impl Reader<'_> {
                 self.emit(close, next.saturating_sub(1)..next);
             }
         }
+        self.end_markup(before, next);
         Ok(next)
     }
 
@@ -374,6 +405,7 @@ impl Reader<'_> {
             )
             .with_help("write `\\bullet` per +1, `\\prime` per −1, or `\\times` for neutral"));
         }
+        self.end_markup(before, next);
         Ok(next)
     }
 
@@ -481,6 +513,8 @@ impl Reader<'_> {
     fn command(&mut self, at: usize, end: usize, mode: Mode) -> Result<usize, Diagnostic> {
         let (name, mut next) = self.command_at(at, end)?;
         let name = name.to_string();
+        let before = self.out.len();
+        self.begin_markup(at);
         let here = at..next;
         // TeX swallows the spaces after a command spelled with letters.
         let after_spaces = |r: &Self, n: usize| {
@@ -510,6 +544,7 @@ impl Reader<'_> {
                 } else {
                     self.run(inner, mode)?;
                 }
+                self.end_markup(before, after);
                 Ok(after)
             }
             "frac" | "tfrac" | "dfrac" => {
@@ -518,6 +553,7 @@ impl Reader<'_> {
                 self.run(numerator, mode)?;
                 self.emit("/", at..after);
                 self.run(denominator, mode)?;
+                self.end_markup(before, after);
                 Ok(after)
             }
             "bullet" | "cdot" => {
@@ -637,6 +673,7 @@ impl Reader<'_> {
             map: Vec::new(),
             over_arrow: None,
             notes: Vec::new(),
+            lead: None,
         };
         if sub.run(span.clone(), Mode::Math).is_ok() {
             let text = sub.out.trim().to_string();
@@ -723,8 +760,13 @@ mod tests {
         let n = normalise(source).unwrap();
         let at = n.text.find("Xq").unwrap();
         let span = n.source_span(at..at + 2);
-        assert_eq!(&source[span], "Xq");
+        assert_eq!(&source[span], r"\mathrm{Xq}");
         let end = n.source_span(n.text.len()..n.text.len());
         assert_eq!(end, source.len()..source.len());
+        // A span over a whole term covers its markup, braces included.
+        let whole = n.source_span(0..n.text.find(' ').unwrap());
+        assert_eq!(&source[whole], r"\mathrm{Y}_{\mathrm{Zr}}^{\prime}");
+        let all = n.source_span(0..n.text.len());
+        assert_eq!(all, 0..source.len());
     }
 }

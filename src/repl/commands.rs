@@ -359,6 +359,7 @@ fn drop(session: &mut Session, args: &Args<'_>, out: &mut dyn Write) -> Result<(
         writeln!(out, "dropped {tag}")?;
     }
     session.offer = None;
+    session.failing_draft = None;
     Ok(())
 }
 

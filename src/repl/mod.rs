@@ -472,6 +472,9 @@ pub struct Session {
     source: String,
     /// Whether the "no host" explanation was printed once already.
     told_no_host: bool,
+    /// The last reaction typed, when it failed: the next one typed that
+    /// corrects it (same reaction give or take a term) takes its place.
+    failing_draft: Option<usize>,
     balancer: Option<BalanceHook>,
     /// Inputs that had errors (reactions that fail, commands that failed).
     pub problems: u64,
@@ -489,6 +492,7 @@ impl Session {
             palette,
             source: source.to_string(),
             told_no_host: false,
+            failing_draft: None,
             balancer: BALANCER,
             problems: 0,
             quit: false,
@@ -722,10 +726,25 @@ impl Session {
             preamble: Vec::new(),
             comment,
         };
-        let (index, replaced) = match label.as_deref().and_then(|l| self.label_index(l)) {
+        let corrected = self.failing_draft.filter(|&i| {
+            label.is_none()
+                && self
+                    .entries
+                    .get(i)
+                    .is_some_and(|e| corrects(&e.reaction, &entry.reaction))
+        });
+        let (index, replaced) = match label
+            .as_deref()
+            .and_then(|l| self.label_index(l))
+            .or(corrected)
+        {
             Some(i) => {
-                let old = std::mem::replace(&mut self.entries[i], entry);
-                self.entries[i].preamble = old.preamble;
+                let mut entry = entry;
+                entry.preamble = std::mem::take(&mut self.entries[i].preamble);
+                if entry.label.is_none() {
+                    entry.label = self.entries[i].label.take();
+                }
+                self.entries[i] = entry;
                 (i, true)
             }
             None => {
@@ -733,6 +752,17 @@ impl Session {
                 (self.entries.len() - 1, false)
             }
         };
+        // Only a reaction that is wrong is a draft to correct; one that only
+        // lacks a host is not.
+        let wrong =
+            analysis.verdict.as_ref().is_some_and(|v| {
+                !v.balance.mass || !v.balance.charge || v.balance.site == Some(false)
+            }) || analysis
+                .diagnostics
+                .iter()
+                .any(|d| d.is_error() && d.code != Code::NoHost);
+        self.failing_draft = wrong.then_some(index);
+        self.offer = None;
         if !ok {
             self.problems += 1;
         }
@@ -742,6 +772,13 @@ impl Session {
             .iter()
             .filter(|d| d.code != Code::NoHost || !self.told_no_host)
             .cloned()
+            .map(|d| {
+                if d.code == Code::NoHost {
+                    d.with_help("set it with `/host SPEC`, e.g. `/host ZrO2`; the reactions typed so far are checked again then")
+                } else {
+                    d
+                }
+            })
             .collect();
         if analysis.diagnostics.iter().any(|d| d.code == Code::NoHost) {
             self.told_no_host = true;
@@ -801,7 +838,7 @@ impl Session {
         let p = self.palette;
         let status = verdict_text(p, analysis.verdict.as_ref(), &analysis.diagnostics);
         let replaced = if replaced {
-            "  (replaces the old one)"
+            "  (in place of the earlier one)"
         } else {
             ""
         };
@@ -872,6 +909,55 @@ impl Session {
         }
         Some((line, analysis))
     }
+}
+
+/// What a term is, ignoring its coefficient and charges: the skeleton a
+/// correction keeps.
+fn skeleton_of(term: &crate::notation::Term) -> String {
+    match &term.entity {
+        Entity::Species(s) => {
+            let mut key = s.key();
+            key.charge = 0;
+            format!("{:?}{:?}", key.occupant, key.site)
+        }
+        Entity::Associate(a) => {
+            let mut parts: Vec<String> = a.parts.iter().map(skeleton_of).collect();
+            parts.sort();
+            format!("({})", parts.join(" "))
+        }
+        Entity::Compound(c) => format!("{:?}{:?}", c.formula.atoms, c.phase),
+        Entity::Nil => "nil".to_string(),
+    }
+}
+
+/// Whether `new` looks like a correction of `old`: one side the same and
+/// the other the same give or take terms (charges and coefficients aside).
+fn corrects(old: &Reaction, new: &Reaction) -> bool {
+    let side = |terms: &[crate::notation::Term]| {
+        let mut s: Vec<String> = terms.iter().map(skeleton_of).collect();
+        s.sort();
+        s
+    };
+    let within = |a: &[String], b: &[String]| {
+        let (small, large) = if a.len() <= b.len() { (a, b) } else { (b, a) };
+        let mut rest = large.to_vec();
+        small
+            .iter()
+            .all(|t| match rest.iter().position(|r| r == t) {
+                Some(i) => {
+                    rest.remove(i);
+                    true
+                }
+                None => false,
+            })
+    };
+    let (ol, or, nl, nr) = (
+        side(&old.left),
+        side(&old.right),
+        side(&new.left),
+        side(&new.right),
+    );
+    (ol == nl && within(&or, &nr)) || (or == nr && within(&ol, &nl))
 }
 
 /// `✓ balanced`, `✗ fails charge, sites`, `? sites unchecked (no host)`.

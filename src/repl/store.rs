@@ -76,6 +76,7 @@ pub(super) fn load(
         }
     };
     let name = path.display().to_string();
+    session.failing_draft = None;
     let was_empty = session.entries.is_empty() && session.trailer.is_empty();
     let default_host = session.host.clone();
     let mut host = default_host.clone();
