@@ -11,7 +11,8 @@
 
 use crate::host::Host;
 use crate::notation::{
-    Reaction, Style, Term, escape_html, render_formula, render_reaction_over, render_term,
+    Entity, Phase, Reaction, Style, Term, escape_html, render_formula, render_reaction_over,
+    render_term,
 };
 use crate::number::{self, Q};
 use std::fmt;
@@ -96,8 +97,40 @@ pub fn host_formula(host: &Host, form: Form) -> String {
     render_formula(&host.formula, form.style())
 }
 
+/// When to set the host over the arrow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum ArrowHost {
+    /// Over the arrow of reactions that bring a condensed compound into the
+    /// host (`Y2O3 -> ...`), as manuscripts do; a plain arrow for the
+    /// others (reduction, Frenkel and Schottky disorder, association).
+    #[default]
+    Auto,
+    Always,
+    Never,
+}
+
+/// The host to set over the arrow of `reaction` under `policy`.
+pub fn host_over_arrow<'h>(
+    reaction: &Reaction,
+    host: Option<&'h Host>,
+    policy: ArrowHost,
+) -> Option<&'h Host> {
+    let incorporates = || {
+        reaction
+            .left
+            .iter()
+            .any(|t| matches!(&t.entity, Entity::Compound(c) if c.phase != Some(Phase::Gas)))
+    };
+    match policy {
+        ArrowHost::Always => host,
+        ArrowHost::Never => None,
+        ArrowHost::Auto => host.filter(|_| incorporates()),
+    }
+}
+
 /// One reaction. With a host and a form that stacks, the host is set over
-/// the arrow as the trade does (`\xrightarrow{\mathrm{ZrO_{2}}}`).
+/// the arrow as the trade does (`\xrightarrow{\mathrm{ZrO_{2}}}`); choose
+/// the host with `host_over_arrow`.
 pub fn reaction(reaction: &Reaction, form: Form, host: Option<&Host>) -> String {
     let over = host
         .filter(|_| form.stacks())
@@ -243,6 +276,19 @@ mod tests {
         assert_eq!(unicode, "Y₂O₃ → 2 Y_Zr′ + V_O•• + 3 O_O×");
         let html = reaction(&r, Form::Html, Some(&host));
         assert!(html.contains("<rt>ZrO<sub>2</sub></rt>"), "{html}");
+    }
+
+    // source: common practice — manuscripts set the host over the arrow of a
+    // dissolution reaction, not over that of an intrinsic one.
+    #[test]
+    fn the_host_goes_over_incorporation_reactions_only_by_default() {
+        let host = Host::from_spec("ZrO2").unwrap();
+        let dissolution = parsed("Y2O3 -> 2Y_Zr' + V_O.. + 3O_Ox");
+        let reduction = parsed("O_O -> V_O.. + 2e' + 1/2 O2(g)");
+        assert!(host_over_arrow(&dissolution, Some(&host), ArrowHost::Auto).is_some());
+        assert!(host_over_arrow(&reduction, Some(&host), ArrowHost::Auto).is_none());
+        assert!(host_over_arrow(&reduction, Some(&host), ArrowHost::Always).is_some());
+        assert!(host_over_arrow(&dissolution, Some(&host), ArrowHost::Never).is_none());
     }
 
     #[test]

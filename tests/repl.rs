@@ -117,7 +117,8 @@ fn every_command_answers() {
         "[2 yttria] ✓ balanced",
         "1 of 1 pass",
         "  V_O••  in [1] [2]",
-        "\\mathrm{O}_{\\mathrm{O}}^{\\times} \\xrightarrow{\\mathrm{ZrO_{2}}} V_{\\mathrm{O}}^{\\bullet\\bullet} + 2\\,e^{\\prime} + \\tfrac{1}{2}\\,\\mathrm{O_{2}(g)}",
+        "\\mathrm{O}_{\\mathrm{O}}^{\\times} \\longrightarrow V_{\\mathrm{O}}^{\\bullet\\bullet} + 2\\,e^{\\prime} + \\tfrac{1}{2}\\,\\mathrm{O_{2}(g)}",
+        "\\mathrm{Y_{2}O_{3}} \\xrightarrow{\\mathrm{ZrO_{2}}} 2\\,\\mathrm{Y}_{\\mathrm{Zr}}^{\\prime}",
         "O_O× → V_O•• + 2 e′ + ½ O₂(g)",
         "yttria: Y2O3 -> 2 Y_Zr' + V_O.. + 3 O_Ox",
         "<ruby>→<rp>(</rp><rt>ZrO<sub>2</sub></rt><rp>)</rp></ruby>",
@@ -286,6 +287,25 @@ fn loading_keeps_comments_model_lines_and_broken_lines() {
     // lines that followed the file's last reaction.
     let expected = original.replace("# end\n", &format!("{SCHOTTKY}\n# end\n"));
     assert_eq!(saved, expected);
+}
+
+#[test]
+fn a_typed_correction_fixes_a_reaction_of_the_loaded_file_in_place() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("draft.kvr");
+    fs::write(
+        &path,
+        format!("host ZrO2\nyttria: Y2O3 -> 2Y_Zr' + V_O..  # forgot the oxygen\n{SCHOTTKY}\n"),
+    )
+    .unwrap();
+    let (out, code) = output(dir.path(), &["draft.kvr"], &format!("{YTTRIA}\n/save\n"));
+    assert_eq!(code, 1, "the file had a failing reaction: {out}");
+    assert!(out.contains("[1 yttria] ✓ balanced"), "{out}");
+    assert!(out.contains("in place of the one that failed"), "{out}");
+    assert_eq!(
+        fs::read_to_string(&path).unwrap(),
+        format!("host ZrO2\nyttria: {YTTRIA}  # forgot the oxygen\n{SCHOTTKY}\n")
+    );
 }
 
 #[test]

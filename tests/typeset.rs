@@ -101,7 +101,7 @@ V<sub>Ti</sub><sup>•</sup>
 #[test]
 fn reactions_with_the_host_over_the_arrow() {
     cargo_bin_cmd!("lacuna")
-        .args(["typeset", "--host", "AgCl", "-r", "frenkel: Ag_Ag -> Ag_i. + V_Ag'"])
+        .args(["typeset", "--host", "AgCl", "--host-over-arrow", "always", "-r", "frenkel: Ag_Ag -> Ag_i. + V_Ag'"])
         .assert()
         .success()
         .stdout(
@@ -113,7 +113,7 @@ fn reactions_with_the_host_over_the_arrow() {
         .success()
         .stdout("Y<sub>2</sub>O<sub>3</sub> <ruby>⇌<rp>(</rp><rt>ZrO<sub>2</sub></rt><rp>)</rp></ruby> 2 Y<sub>Zr</sub><sup>′</sup> + <i>V</i><sub>O</sub><sup>••</sup> + 3 O<sub>O</sub><sup>×</sup>\n");
     cargo_bin_cmd!("lacuna")
-        .args(["typeset", "--host", "ZrO2", "--to", "markdown", "--plain-arrow", "-r", "red: O_O -> V_O.. + 2e' + 1/2 O2(g)"])
+        .args(["typeset", "--host", "ZrO2", "--to", "markdown", "-r", "red: O_O -> V_O.. + 2e' + 1/2 O2(g)"])
         .assert()
         .success()
         .stdout("- **red**: O<sub>O</sub><sup>×</sup> → <i>V</i><sub>O</sub><sup>••</sup> + 2 <i>e</i><sup>′</sup> + ½ O<sub>2</sub>(g)\n");
@@ -390,7 +390,7 @@ fn typeset_reads_reaction_files() {
         .assert()
         .success()
         .stdout(
-            "\\mathrm{O}_{\\mathrm{O}}^{\\times} \\xrightarrow{\\mathrm{CeO_{2}}} V_{\\mathrm{O}}^{\\bullet\\bullet} + 2\\,e^{\\prime} + \\tfrac{1}{2}\\,\\mathrm{O_{2}(g)} % red\n\\mathrm{Y_{2}O_{3}} \\xrightarrow{\\mathrm{ZrO_{2}}} 2\\,\\mathrm{Y}_{\\mathrm{Zr}}^{\\prime} + V_{\\mathrm{O}}^{\\bullet\\bullet} + 3\\,\\mathrm{O}_{\\mathrm{O}}^{\\times}\n",
+            "\\mathrm{O}_{\\mathrm{O}}^{\\times} \\longrightarrow V_{\\mathrm{O}}^{\\bullet\\bullet} + 2\\,e^{\\prime} + \\tfrac{1}{2}\\,\\mathrm{O_{2}(g)} % red\n\\mathrm{Y_{2}O_{3}} \\xrightarrow{\\mathrm{ZrO_{2}}} 2\\,\\mathrm{Y}_{\\mathrm{Zr}}^{\\prime} + V_{\\mathrm{O}}^{\\bullet\\bullet} + 3\\,\\mathrm{O}_{\\mathrm{O}}^{\\times}\n",
         );
     // The ascii form of a file is a reaction file again.
     let ascii = cargo_bin_cmd!("lacuna")

@@ -65,6 +65,9 @@ pub fn run(args: &ReplArgs) -> ExitCode {
         }
     }
     let stdout = io::stdout();
+    if interactive {
+        let _ = writeln!(stdout.lock(), "{}", driver::BANNER);
+    }
     if let Some(file) = &args.file {
         let line = format!("/load {}", file.display());
         if let Err(e) = session.handle_line(&line, 0, &mut stdout.lock()) {

@@ -13,7 +13,7 @@ use crate::notation::parse_species_text;
 use crate::render::Palette;
 use crate::render::human::write_diagnostic;
 use crate::repl::{HostSlot, analyse};
-use crate::typeset::{self, Form};
+use crate::typeset::{self, ArrowHost, Form};
 use clap::{Args, ValueEnum};
 use std::io::{self, IsTerminal, Read, Write};
 use std::path::PathBuf;
@@ -47,6 +47,24 @@ impl FormArg {
     }
 }
 
+/// When to set the host over the arrow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ArrowArg {
+    Auto,
+    Always,
+    Never,
+}
+
+impl ArrowArg {
+    fn policy(self) -> ArrowHost {
+        match self {
+            ArrowArg::Auto => ArrowHost::Auto,
+            ArrowArg::Always => ArrowHost::Always,
+            ArrowArg::Never => ArrowHost::Never,
+        }
+    }
+}
+
 #[derive(Debug, Args)]
 pub struct TypesetArgs {
     /// Reaction files to typeset; `-` reads standard input.
@@ -64,9 +82,10 @@ pub struct TypesetArgs {
     /// Output form.
     #[arg(long = "to", value_enum, default_value_t = FormArg::Latex, value_name = "FORM")]
     pub to: FormArg,
-    /// Do not set the host over the arrow.
-    #[arg(long)]
-    pub plain_arrow: bool,
+    /// When to set the host over the arrow (latex, html, markdown): `auto`
+    /// for reactions that dissolve a compound in the host.
+    #[arg(long, value_enum, default_value_t = ArrowArg::Auto, value_name = "WHEN")]
+    pub host_over_arrow: ArrowArg,
     /// Typeset without checking the balances.
     #[arg(long)]
     pub no_check: bool,
@@ -130,9 +149,11 @@ impl Run<'_> {
             }
         }
         let effective = analysis.host_from_arrow.as_ref().or(host);
-        let over = effective
-            .map(|h| &h.host)
-            .filter(|_| !self.args.plain_arrow);
+        let over = typeset::host_over_arrow(
+            reaction,
+            effective.map(|h| &h.host),
+            self.args.host_over_arrow.policy(),
+        );
         let body = typeset::reaction(reaction, self.form, over);
         writeln!(self.out, "{}", typeset::line(label, &body, self.form))
     }

@@ -82,7 +82,7 @@ pub static COMMANDS: &[CommandSpec] = &[
         aliases: &["ts"],
         summary: "write reactions as latex, unicode, ascii, html or markdown",
         usage: "[FORM] [WHICH...|all]",
-        details: "FORM is latex (the default), unicode, ascii, html or markdown. LaTeX is\nmath mode with the host over the arrow (`\\xrightarrow{\\mathrm{ZrO_{2}}}`)\nand the label as a `%` comment; ascii and unicode lines are reaction-file\nlines. See grammar/repl.md for every form.",
+        details: "FORM is latex (the default), unicode, ascii, html or markdown. LaTeX is\nmath mode, the host over the arrow of dissolution reactions\n(`\\xrightarrow{\\mathrm{ZrO_{2}}}`), the label as a `%` comment; ascii and unicode lines are reaction-file\nlines. See grammar/repl.md for every form.",
         arguments: ArgKind::FormThenEntries,
         run: typeset_command,
     },
@@ -359,7 +359,6 @@ fn drop(session: &mut Session, args: &Args<'_>, out: &mut dyn Write) -> Result<(
         writeln!(out, "dropped {tag}")?;
     }
     session.offer = None;
-    session.failing_draft = None;
     Ok(())
 }
 
@@ -476,7 +475,9 @@ fn typeset_command(
     }
     for i in chosen {
         let entry = &session.entries[i];
-        let body = typeset::reaction(&entry.reaction, form, entry.host.as_ref().map(|h| &h.host));
+        let host = entry.host.as_ref().map(|h| &h.host);
+        let over = typeset::host_over_arrow(&entry.reaction, host, typeset::ArrowHost::Auto);
+        let body = typeset::reaction(&entry.reaction, form, over);
         writeln!(
             out,
             "{}",

@@ -38,15 +38,17 @@ pub struct TerminalOptions {
     pub color: bool,
 }
 
-/// The greeting printed when the terminal session starts.
-pub fn banner(session: &Session) -> String {
-    let host = match session.host() {
-        Some(h) => format!("host {}", h.formula_text),
-        None => "no host yet: `/host ZrO2` sets one".to_string(),
-    };
-    format!(
-        "lacuna workbench — type a reaction to check it; /help lists commands; Ctrl-D leaves.\n{host}"
-    )
+/// The greeting printed when the terminal session starts (before a file
+/// given on the command line is loaded).
+pub const BANNER: &str =
+    "lacuna workbench — type a reaction to check it; /help lists commands; Ctrl-D leaves.";
+
+/// What to say about the host when the editor starts.
+fn host_hint(session: &Session) -> Option<&'static str> {
+    session
+        .host()
+        .is_none()
+        .then_some("no host yet: `/host ZrO2` sets one")
 }
 
 fn load_history(
@@ -98,7 +100,9 @@ pub fn run_terminal(session: &mut Session, options: &TerminalOptions) -> io::Res
     }
     {
         let mut out = stdout.lock();
-        writeln!(out, "{}", banner(session))?;
+        if let Some(hint) = host_hint(session) {
+            writeln!(out, "{hint}")?;
+        }
         for w in &warnings {
             writeln!(out, "note: {w}")?;
         }

@@ -78,6 +78,9 @@ pub struct Entry {
     pub host: Option<Rc<HostSlot>>,
     /// Whether it passed every check when last checked.
     pub ok: bool,
+    /// Whether it is wrong in itself (a balance fails, or an error other
+    /// than a missing host): a reaction typed to correct it replaces it.
+    pub wrong: bool,
     /// Lines above it in the file it came from (comments, model lines,
     /// lines that did not parse), written back before it when saving.
     pub preamble: Vec<String>,
@@ -472,9 +475,6 @@ pub struct Session {
     source: String,
     /// Whether the "no host" explanation was printed once already.
     told_no_host: bool,
-    /// The last reaction typed, when it failed: the next one typed that
-    /// corrects it (same reaction give or take a term) takes its place.
-    failing_draft: Option<usize>,
     balancer: Option<BalanceHook>,
     /// Inputs that had errors (reactions that fail, commands that failed).
     pub problems: u64,
@@ -492,7 +492,6 @@ impl Session {
             palette,
             source: source.to_string(),
             told_no_host: false,
-            failing_draft: None,
             balancer: BALANCER,
             problems: 0,
             quit: false,
@@ -723,16 +722,20 @@ impl Session {
             reaction,
             host: self.host.clone(),
             ok,
+            wrong: is_wrong(&analysis),
             preamble: Vec::new(),
             comment,
         };
-        let corrected = self.failing_draft.filter(|&i| {
-            label.is_none()
-                && self
-                    .entries
-                    .get(i)
-                    .is_some_and(|e| corrects(&e.reaction, &entry.reaction))
-        });
+        // A reaction typed to fix one that is wrong takes its place: the
+        // most recent wrong reaction it corrects (same reaction give or take
+        // a term).
+        let corrected = if label.is_none() {
+            (0..self.entries.len()).rev().find(|&i| {
+                self.entries[i].wrong && corrects(&self.entries[i].reaction, &entry.reaction)
+            })
+        } else {
+            None
+        };
         let (index, replaced) = match label
             .as_deref()
             .and_then(|l| self.label_index(l))
@@ -741,6 +744,7 @@ impl Session {
             Some(i) => {
                 let mut entry = entry;
                 entry.preamble = std::mem::take(&mut self.entries[i].preamble);
+                entry.comment = entry.comment.or_else(|| self.entries[i].comment.take());
                 if entry.label.is_none() {
                     entry.label = self.entries[i].label.take();
                 }
@@ -752,16 +756,6 @@ impl Session {
                 (self.entries.len() - 1, false)
             }
         };
-        // Only a reaction that is wrong is a draft to correct; one that only
-        // lacks a host is not.
-        let wrong =
-            analysis.verdict.as_ref().is_some_and(|v| {
-                !v.balance.mass || !v.balance.charge || v.balance.site == Some(false)
-            }) || analysis
-                .diagnostics
-                .iter()
-                .any(|d| d.is_error() && d.code != Code::NoHost);
-        self.failing_draft = wrong.then_some(index);
         self.offer = None;
         if !ok {
             self.problems += 1;
@@ -838,7 +832,7 @@ impl Session {
         let p = self.palette;
         let status = verdict_text(p, analysis.verdict.as_ref(), &analysis.diagnostics);
         let replaced = if replaced {
-            "  (in place of the earlier one)"
+            "  (in place of the one that failed)"
         } else {
             ""
         };
@@ -902,13 +896,28 @@ impl Session {
         let analysis = analyse(&line, span, entry.host.as_ref());
         let ok = analysis.verdict.as_ref().is_some_and(Verdict::ok)
             && !analysis.diagnostics.iter().any(Diagnostic::is_error);
+        let wrong = is_wrong(&analysis);
         let entry = self.entries.get_mut(index)?;
         entry.ok = ok;
+        entry.wrong = wrong;
         if let Some(r) = &analysis.reaction {
             entry.reaction = r.clone();
         }
         Some((line, analysis))
     }
+}
+
+/// Whether a reaction is wrong in itself: a balance fails, or there is an
+/// error other than a missing host.
+fn is_wrong(analysis: &Analysis) -> bool {
+    analysis
+        .verdict
+        .as_ref()
+        .is_some_and(|v| !v.balance.mass || !v.balance.charge || v.balance.site == Some(false))
+        || analysis
+            .diagnostics
+            .iter()
+            .any(|d| d.is_error() && d.code != Code::NoHost)
 }
 
 /// What a term is, ignoring its coefficient and charges: the skeleton a

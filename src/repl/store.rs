@@ -76,7 +76,6 @@ pub(super) fn load(
         }
     };
     let name = path.display().to_string();
-    session.failing_draft = None;
     let was_empty = session.entries.is_empty() && session.trailer.is_empty();
     let default_host = session.host.clone();
     let mut host = default_host.clone();
@@ -138,6 +137,7 @@ pub(super) fn load(
                 let analysis = analyse(&line, reaction.clone(), host.as_ref());
                 let ok = analysis.verdict.as_ref().is_some_and(Verdict::ok)
                     && !analysis.diagnostics.iter().any(Diagnostic::is_error);
+                let wrong = super::is_wrong(&analysis);
                 let Some(parsed) = analysis.reaction else {
                     unreadable += 1;
                     for d in analysis.diagnostics {
@@ -170,6 +170,7 @@ pub(super) fn load(
                     reaction: parsed,
                     host: host.clone(),
                     ok,
+                    wrong,
                     preamble: std::mem::take(&mut preamble),
                     comment,
                 });

@@ -82,15 +82,18 @@ fn a_correction_takes_the_place_of_the_failing_draft() {
     run(&mut s, "O_O -> V_O. + 2e' + 1/2 O2(g)");
     let out = run(&mut s, "O_O -> V_O.. + 2e' + 1/2 O2(g)");
     assert!(out.starts_with("[1] ✓ balanced"), "{out}");
-    assert!(out.contains("in place of the earlier one"), "{out}");
+    assert!(out.contains("in place of the one that failed"), "{out}");
     // A forgotten term added: still the same reaction.
     run(&mut s, "Y2O3 -> 2Y_Zr' + V_O..");
     let out = run(&mut s, "Y2O3 -> 2Y_Zr' + V_O.. + 3O_Ox");
     assert!(out.starts_with("[2] ✓ balanced"), "{out}");
-    // A different reaction after a failing one is a new entry.
+    // A different reaction after a failing one is a new entry...
     run(&mut s, "O_O -> V_O. + 2e' + 1/2 O2(g)");
     let out = run(&mut s, "O_O -> O_i'' + V_O..");
     assert!(out.starts_with("[4] ✓ balanced"), "{out}");
+    // ...and the correction typed after it still finds the failing one.
+    let out = run(&mut s, "O_O -> V_O.. + 2e' + 1/2 O2(g)");
+    assert!(out.starts_with("[3] ✓ balanced"), "{out}");
     assert_eq!(s.entries().len(), 4);
     // A passing reaction is never replaced by a look-alike.
     let out = run(&mut s, "O_O -> O_i'' + V_O..");
@@ -103,7 +106,7 @@ fn labels_name_and_replace() {
     run(&mut s, "red: O_O -> V_O. + 2e' + 1/2 O2(g)");
     let out = run(&mut s, "red: O_O -> V_O.. + 2e' + 1/2 O2(g)");
     assert!(out.contains("[1 red] ✓ balanced"), "{out}");
-    assert!(out.contains("in place of the earlier one"), "{out}");
+    assert!(out.contains("in place of the one that failed"), "{out}");
     assert_eq!(s.entries().len(), 1);
     let out = run(&mut s, "/name red 3x");
     assert!(out.contains("`3x` cannot be a label"), "{out}");
