@@ -445,6 +445,27 @@ mod terminal {
     }
 
     #[test]
+    fn lacuna_alone_on_a_terminal_starts_the_workbench() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut command = std::process::Command::new(env!("CARGO_BIN_EXE_lacuna"));
+        command
+            .current_dir(dir.path())
+            .env("LACUNA_HISTORY", dir.path().join("history.txt"))
+            .env("NO_COLOR", "1")
+            .env("TERM", "xterm");
+        let mut p = spawn_with_options(command, Options::new().timeout_ms(Some(10_000)))
+            .expect("a pseudo-terminal");
+        p.exp_string("lacuna workbench").unwrap();
+        p.exp_string("no host yet").unwrap();
+        p.send_line("/host ZrO2").unwrap();
+        p.exp_string("formal charge").unwrap();
+        settle();
+        p.send_control('d').unwrap();
+        p.exp_eof().unwrap();
+        assert!(dir.path().join("history.txt").exists());
+    }
+
+    #[test]
     fn completion_history_and_leaving() {
         let dir = tempfile::tempdir().unwrap();
         let history = dir.path().join("state").join("history.txt");

@@ -305,3 +305,29 @@ fn args_split_with_spans() {
     assert_eq!(a.words.len(), 3);
     assert_eq!(&a.line[a.words[1].1.clone()], "file.kvr");
 }
+
+#[test]
+fn the_document_lists_every_command_and_code() {
+    let doc = include_str!("../../grammar/repl.md");
+    for spec in COMMANDS {
+        assert!(
+            doc.contains(&format!("| `/{}` |", spec.name)),
+            "grammar/repl.md lacks /{}",
+            spec.name
+        );
+        for alias in spec.aliases {
+            assert!(
+                doc.contains(&format!("`/{alias}`")),
+                "grammar/repl.md lacks /{alias}"
+            );
+        }
+    }
+    for code in crate::diagnostic::Code::ALL {
+        if code.as_str().starts_with('T') {
+            assert!(
+                doc.contains(&format!("| {} |", code.as_str())),
+                "grammar/repl.md lacks {code}"
+            );
+        }
+    }
+}
