@@ -300,7 +300,18 @@ fn name(session: &mut Session, args: &Args<'_>, out: &mut dyn Write) -> Result<(
             .with_help("e.g. `/name 2 red` (or `/name red -` to remove the label)")
             .into());
     };
-    let index = session.select(args, std::slice::from_ref(which))?[0];
+    if which.0 == "all" {
+        return Err(args
+            .usage_error(Some(which.1.clone()), "a label names one reaction, not all")
+            .with_help("e.g. `/name 2 red`")
+            .into());
+    }
+    let Some(&index) = session.select(args, std::slice::from_ref(which))?.first() else {
+        return Err(args
+            .usage_error(Some(which.1.clone()), "no reaction to name")
+            .with_help("type a reaction first")
+            .into());
+    };
     if *label == "-" {
         session.entries[index].label = None;
         writeln!(out, "{} has no label now", session.entry_tag(index))?;

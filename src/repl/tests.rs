@@ -331,3 +331,27 @@ fn the_document_lists_every_command_and_code() {
         }
     }
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(400))]
+
+    /// No input ends the session with a crash. (Commands that touch files
+    /// are left out so the test writes nothing.)
+    #[test]
+    fn no_input_crashes_the_session(
+        lines in proptest::collection::vec(
+            r"(/(host|list|ls|name|drop|check|species|ts|typeset|take|help|balance|q) ?)?[a-zA-Z0-9_^{}()\\\\$'.*x+<=>/:#%& •′×→⇌½₂□-]{0,40}",
+            1..6,
+        )
+    ) {
+        let mut s = zirconia().with_balancer(knows_yttria);
+        for line in &lines {
+            let mut out = Vec::new();
+            proptest::prop_assert!(s.handle_block(line, 1, &mut out).is_ok());
+        }
+        let mut out = Vec::new();
+        for command in ["/list", "/species", "/ts", "/ts html", "/check", "/name all x", "/name 1 x"] {
+            proptest::prop_assert!(s.handle_line(command, 1, &mut out).is_ok());
+        }
+    }
+}
