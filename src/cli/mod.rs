@@ -26,7 +26,7 @@ pub struct Cli {
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
-    /// Work interactively: type reactions, check, name, save and typeset them.
+    /// Work interactively (also `lacuna` alone on a terminal): type, check, name, save and typeset reactions.
     Repl(repl::ReplArgs),
     /// Write reactions and species for manuscripts (LaTeX, Unicode, HTML, ...).
     Typeset(typeset::TypesetArgs),
