@@ -145,6 +145,20 @@ codes! {
         "Absolute temperatures, oxygen partial pressures and conductivities must be positive, because the fit works with their logarithms; uncertainties must be positive. A zero or negative value is usually a unit or sign slip, or a reading below the instrument's floor that should be left out.";
     CsvIsotherm = "F905", Error, "isotherm too small",
         "A slope needs at least two oxygen pressures per isotherm, so an isotherm with a single row, or with all rows at one pressure, cannot be fitted. Add points, group rows with an `isotherm` column, or remove the row.";
+    LatexCommand = "T801", Error, "LaTeX command",
+        "A reaction pasted from a manuscript is read as LaTeX math when it holds a backslash or `$`. The reader knows the commands a defect reaction needs: `\\mathrm{}`, `\\mathit{}`, `\\text{}`, `_{}`, `^{}`, `\\bullet`, `\\prime`, `\\times`, `\\cdot`, `\\,`, `\\;`, `\\frac`/`\\tfrac`, `\\xrightarrow{}`, `\\rightleftharpoons`, `\\longrightarrow`, `\\varnothing` and a few spacing and layout commands. Any other command is reported with its column rather than guessed at. See grammar/repl.md.";
+    LatexBraces = "T802", Error, "LaTeX braces or argument",
+        "Braces in LaTeX must pair up, and `_`, `^`, `\\mathrm`, `\\frac` and the like need their arguments.";
+    LatexCharge = "T803", Error, "LaTeX superscript",
+        "A superscript on a Kröger–Vink species is an effective charge: `\\bullet` (or `\\cdot`, `.`) per +1, `\\prime` (or `'`) per −1, `\\times` (or `x`) for neutral, optionally with a count (`^{2\\bullet}`). Real ionic charges such as `^{2+}` belong to free ions, not to defects.";
+    HostOverArrow = "T804", Warning, "host over the arrow",
+        "A manuscript writes the host over the arrow (`\\xrightarrow{\\mathrm{ZrO_2}}`). When it differs from the host the reaction is checked against, one of the two is wrong.";
+    UprightV = "T805", Note, "upright V",
+        "IUPAC (2005, IR-11.4.2) writes the vacancy as an italic V and vanadium as an upright V, so `\\mathrm{V}` is read as vanadium. For a vacancy write `V` (math italic) or `\\mathit{V}`.";
+    WorkbenchCommand = "T810", Error, "workbench command",
+        "Workbench commands start with `/` (`/help` lists them). A command was unknown, or its arguments did not fit its usage.";
+    WorkbenchFile = "T811", Error, "workbench file",
+        "A reaction file could not be read or written. Saving never touches the old file until the new one is complete; a file that exists and is not the session's own is only replaced with `--replace`.";
 }
 
 impl fmt::Display for Code {

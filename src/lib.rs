@@ -18,3 +18,5 @@ pub mod lint;
 pub mod notation;
 pub mod number;
 pub mod render;
+pub mod repl;
+pub mod typeset;

@@ -7,4 +7,6 @@ mod fit;
 mod hostile;
 mod lint_cli;
 mod properties;
+mod repl;
 mod support;
+mod typeset;

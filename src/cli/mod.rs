@@ -6,6 +6,8 @@ mod check;
 mod explain;
 mod fit;
 mod fmt;
+mod repl;
+mod typeset;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -15,10 +17,12 @@ use std::process::ExitCode;
 
 /// Point-defect chemistry in Kröger–Vink notation.
 #[derive(Debug, Parser)]
-#[command(name = "lacuna", version, about, long_about = None, arg_required_else_help = true)]
+///
+/// With no command on a terminal, starts the workbench (`lacuna repl`).
+#[command(name = "lacuna", version, about, long_about = None)]
 pub struct Cli {
     #[command(subcommand)]
-    pub command: Command,
+    pub command: Option<Command>,
 }
 
 #[derive(Debug, Subcommand)]
@@ -32,6 +36,10 @@ pub enum Command {
     /// Fit conductivity versus pO2 and temperature: regime slopes, ionic and
     /// electronic parts, activation energies.
     Fit(fit::FitArgs),
+    /// Work interactively (also `lacuna` alone on a terminal): type, check, name, save and typeset reactions.
+    Repl(repl::ReplArgs),
+    /// Write reactions and species for manuscripts (LaTeX, Unicode, HTML, ...).
+    Typeset(typeset::TypesetArgs),
 }
 
 /// Output format of `check`.
@@ -75,10 +83,20 @@ impl ColorChoice {
 pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        Command::Check(args) => check::run(&args),
-        Command::Fmt(args) => fmt::run(&args),
-        Command::Explain(args) => explain::run(&args),
-        Command::Fit(args) => fit::run(&args),
+        Some(Command::Check(args)) => check::run(&args),
+        Some(Command::Fmt(args)) => fmt::run(&args),
+        Some(Command::Explain(args)) => explain::run(&args),
+        Some(Command::Fit(args)) => fit::run(&args),
+        Some(Command::Repl(args)) => repl::run(&args),
+        Some(Command::Typeset(args)) => typeset::run(&args),
+        // No command: the workbench on a terminal, else help and a usage error.
+        None if repl::on_terminal() => repl::run(&repl::ReplArgs::bare()),
+        None => {
+            use clap::CommandFactory;
+            let help = Cli::command().render_help();
+            let _ = write!(io::stderr(), "{help}");
+            ExitCode::from(2)
+        }
     }
 }
 

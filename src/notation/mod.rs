@@ -5,11 +5,15 @@
 //! why the text is not notation. Meaning (does it balance, is the charge
 //! plausible) is the checker's business, not the parser's.
 
+pub mod latex_input;
 mod parse;
 mod render;
 
 pub use parse::{parse_formula, parse_reaction, parse_species_text, quoted};
-pub use render::{Style, render_reaction, render_species, render_term};
+pub use render::{
+    Style, escape_html, render_formula, render_reaction, render_reaction_over, render_species,
+    render_term,
+};
 
 use crate::number::Q;
 use std::ops::Range;

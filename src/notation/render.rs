@@ -1,6 +1,8 @@
 //! Writes notation back as text: ASCII (what a keyboard types), Unicode (what
-//! a reader expects) and LaTeX math (what a manuscript needs). The ASCII and
-//! Unicode forms parse back to the same species.
+//! a reader expects), LaTeX math (what a manuscript needs), and HTML or
+//! Markdown (`<sub>`/`<sup>`, for web pages and notes). The ASCII and Unicode
+//! forms parse back to the same species; the LaTeX form does after
+//! `notation::latex_input::normalise`.
 
 use super::{
     Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term,
@@ -17,23 +19,41 @@ pub enum Style {
     Ascii,
     /// `V_O••`, `Y_Zr′`, `O_O×`, `→`
     Unicode,
-    /// `V_{\mathrm{O}}^{\bullet\bullet}` (math mode)
+    /// `V_{\mathrm{O}}^{\bullet\bullet}` (math mode; the vacancy `V` in math
+    /// italic, elements upright, as IUPAC 2005 IR-11.4.2 asks)
     Latex,
+    /// `<i>V</i><sub>O</sub><sup>••</sup>`
+    Html,
+    /// Inline HTML as Markdown allows it, with Markdown's own syntax
+    /// characters escaped where they occur in text.
+    Markdown,
+}
+
+impl Style {
+    fn tagged(self) -> bool {
+        matches!(self, Style::Html | Style::Markdown)
+    }
 }
 
 fn symbol(z: u8) -> &'static str {
     elements::by_z(z).map_or("?", |e| e.symbol)
 }
 
-fn write_count(out: &mut String, n: Q, latex: bool) {
+fn write_count(out: &mut String, n: Q, style: Style) {
     if n == Q::from_integer(1) {
         return;
     }
     let text = decimal_text(n);
-    if latex {
-        let _ = write!(out, "_{{{text}}}");
-    } else {
-        out.push_str(&text);
+    match style {
+        Style::Latex => {
+            let _ = write!(out, "_{{{text}}}");
+        }
+        Style::Html | Style::Markdown => {
+            let _ = write!(out, "<sub>{text}</sub>");
+        }
+        // Subscript digits read back only as whole numbers (`O₂`, not `La₀.₉`).
+        Style::Unicode => out.push_str(&subscript_digits(&text)),
+        Style::Ascii => out.push_str(&text),
     }
 }
 
@@ -73,10 +93,17 @@ fn decimal_text(q: Q) -> String {
     format!("{sign}{whole}.{}", frac.trim_end_matches('0'))
 }
 
-fn write_formula(out: &mut String, formula: &Formula, latex: bool) {
+fn write_formula(out: &mut String, formula: &Formula, style: Style) {
+    // Unicode subscripts only for whole counts; a formula with a decimal
+    // count keeps all its digits on the line rather than mixing the two.
+    let style = if style == Style::Unicode && formula.atoms.iter().any(|(_, n)| !n.is_integer()) {
+        Style::Ascii
+    } else {
+        style
+    };
     for (z, n) in &formula.atoms {
         out.push_str(symbol(*z));
-        write_count(out, *n, latex);
+        write_count(out, *n, style);
     }
 }
 
@@ -88,11 +115,10 @@ fn write_charge(out: &mut String, charge: i32, style: Style) {
             c if c > 0 => out.push_str(&".".repeat(count)),
             _ => out.push_str(&"'".repeat(count)),
         },
-        Style::Unicode => match charge {
-            0 => out.push('×'),
-            c if c > 0 => out.push_str(&"•".repeat(count)),
-            _ => out.push_str(&"′".repeat(count)),
-        },
+        Style::Unicode => out.push_str(&unicode_marks(charge)),
+        Style::Html | Style::Markdown => {
+            let _ = write!(out, "<sup>{}</sup>", unicode_marks(charge));
+        }
         Style::Latex => {
             let mark = match charge {
                 0 => "\\times",
@@ -104,8 +130,26 @@ fn write_charge(out: &mut String, charge: i32, style: Style) {
     }
 }
 
+fn unicode_marks(charge: i32) -> String {
+    let count = charge.unsigned_abs() as usize;
+    match charge {
+        0 => "×".to_string(),
+        c if c > 0 => "•".repeat(count),
+        _ => "′".repeat(count),
+    }
+}
+
 fn write_site(out: &mut String, site: &Site, style: Style) {
     match (site, style) {
+        (Site::Interstitial, Style::Html | Style::Markdown) => out.push_str("<sub><i>i</i></sub>"),
+        (Site::Lattice { element, label }, Style::Html | Style::Markdown) => {
+            out.push_str("<sub>");
+            out.push_str(symbol(*element));
+            if let Some(label) = label {
+                let _ = write!(out, ":{}", escape_html(label));
+            }
+            out.push_str("</sub>");
+        }
         (Site::Interstitial, Style::Latex) => out.push_str("_{i}"),
         (Site::Interstitial, _) => out.push_str("_i"),
         (Site::Lattice { element, label }, Style::Latex) => {
@@ -138,6 +182,10 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
 
 fn write_species(out: &mut String, species: &Species, style: Style) {
     match (&species.occupant, style) {
+        (Occupant::Electron, s) if s.tagged() => out.push_str("<i>e</i>"),
+        (Occupant::Hole, s) if s.tagged() => out.push_str("<i>h</i>"),
+        (Occupant::Vacancy(_), s) if s.tagged() => out.push_str("<i>V</i>"),
+        (Occupant::Atoms { formula, .. }, s) if s.tagged() => write_formula(out, formula, s),
         (Occupant::Electron, _) => out.push('e'),
         (Occupant::Hole, _) => out.push('h'),
         (Occupant::Vacancy(_), Style::Latex) => out.push('V'),
@@ -146,14 +194,14 @@ fn write_species(out: &mut String, species: &Species, style: Style) {
         (Occupant::Vacancy(VacancySpelling::Bare), _) => out.push('V'),
         (Occupant::Atoms { formula, .. }, Style::Latex) => {
             out.push_str("\\mathrm{");
-            write_formula(out, formula, true);
+            write_formula(out, formula, style);
             out.push('}');
         }
         (Occupant::Atoms { formula, escaped }, _) => {
             if *escaped {
                 out.push_str("el:");
             }
-            write_formula(out, formula, false);
+            write_formula(out, formula, style);
         }
     }
     if let Some(site) = &species.site {
@@ -192,11 +240,11 @@ fn write_compound(out: &mut String, compound: &Compound, style: Style) {
     };
     if style == Style::Latex {
         out.push_str("\\mathrm{");
-        write_formula(out, &compound.formula, true);
+        write_formula(out, &compound.formula, style);
         out.push_str(phase);
         out.push('}');
     } else {
-        write_formula(out, &compound.formula, false);
+        write_formula(out, &compound.formula, style);
         out.push_str(phase);
     }
 }
@@ -212,7 +260,7 @@ fn write_coefficient(out: &mut String, q: Q, style: Style) {
         Style::Latex => {
             let _ = write!(out, "{}\\,", q.numer());
         }
-        Style::Unicode => {
+        Style::Unicode | Style::Html | Style::Markdown => {
             out.push_str(&number::coefficient_text(q, true));
             out.push(' ');
         }
@@ -231,7 +279,7 @@ fn write_term_into(out: &mut String, term: &Term, style: Style) {
         Entity::Compound(c) => write_compound(out, c, style),
         Entity::Nil => out.push_str(match style {
             Style::Ascii => "nil",
-            Style::Unicode => "∅",
+            Style::Unicode | Style::Html | Style::Markdown => "∅",
             Style::Latex => "\\varnothing",
         }),
     }
@@ -253,6 +301,15 @@ pub fn render_term(term: &Term, style: Style) -> String {
 
 /// A whole reaction in the chosen style.
 pub fn render_reaction(reaction: &Reaction, style: Style) -> String {
+    render_reaction_over(reaction, style, None)
+}
+
+/// A whole reaction with `over` (already written in `style`, usually the host
+/// formula) set over the arrow, as manuscripts write the host: LaTeX
+/// `\xrightarrow{..}` (amsmath) or `\overset{..}{..}`, HTML and Markdown a
+/// `<ruby>` annotation. ASCII and Unicode text cannot stack, so they ignore it.
+pub fn render_reaction_over(reaction: &Reaction, style: Style, over: Option<&str>) -> String {
+    use super::Arrow;
     let mut out = String::new();
     let join = " + ";
     for (i, term) in reaction.left.iter().enumerate() {
@@ -261,20 +318,77 @@ pub fn render_reaction(reaction: &Reaction, style: Style) -> String {
         }
         write_term_into(&mut out, term, style);
     }
-    out.push_str(match (reaction.arrow, style) {
-        (super::Arrow::Forward, Style::Ascii) => " -> ",
-        (super::Arrow::Forward, Style::Unicode) => " → ",
-        (super::Arrow::Forward, Style::Latex) => " \\longrightarrow ",
-        (super::Arrow::Equilibrium, Style::Ascii) => " <=> ",
-        (super::Arrow::Equilibrium, Style::Unicode) => " ⇌ ",
-        (super::Arrow::Equilibrium, Style::Latex) => " \\rightleftharpoons ",
-        (super::Arrow::Equals, _) => " = ",
-    });
+    let plain = match (reaction.arrow, style) {
+        (Arrow::Forward, Style::Ascii) => "->",
+        (Arrow::Forward, Style::Latex) => "\\longrightarrow",
+        (Arrow::Forward, _) => "→",
+        (Arrow::Equilibrium, Style::Ascii) => "<=>",
+        (Arrow::Equilibrium, Style::Latex) => "\\rightleftharpoons",
+        (Arrow::Equilibrium, _) => "⇌",
+        (Arrow::Equals, _) => "=",
+    };
+    out.push(' ');
+    match (over, style) {
+        (Some(over), Style::Latex) if reaction.arrow == Arrow::Forward => {
+            let _ = write!(out, "\\xrightarrow{{{over}}}");
+        }
+        (Some(over), Style::Latex) => {
+            let _ = write!(out, "\\overset{{{over}}}{{{plain}}}");
+        }
+        (Some(over), Style::Html | Style::Markdown) => {
+            let _ = write!(
+                out,
+                "<ruby>{plain}<rp>(</rp><rt>{over}</rt><rp>)</rp></ruby>"
+            );
+        }
+        _ => out.push_str(plain),
+    }
+    out.push(' ');
     for (i, term) in reaction.right.iter().enumerate() {
         if i > 0 {
             out.push_str(join);
         }
         write_term_into(&mut out, term, style);
+    }
+    out
+}
+
+/// A bare formula (a host, a gas) in the chosen style: `ZrO2`, `ZrO₂`,
+/// `\mathrm{ZrO_{2}}`, `ZrO<sub>2</sub>`.
+pub fn render_formula(formula: &Formula, style: Style) -> String {
+    let mut out = String::new();
+    match style {
+        Style::Latex => {
+            out.push_str("\\mathrm{");
+            write_formula(&mut out, formula, style);
+            out.push('}');
+        }
+        _ => write_formula(&mut out, formula, style),
+    }
+    out
+}
+
+/// `2` -> `₂`.
+fn subscript_digits(text: &str) -> String {
+    text.chars()
+        .map(|c| match c.to_digit(10) {
+            Some(d) => char::from_u32('₀' as u32 + d).unwrap_or(c),
+            None => c,
+        })
+        .collect()
+}
+
+/// Escapes the characters HTML gives meaning to.
+pub fn escape_html(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for c in text.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            _ => out.push(c),
+        }
     }
     out
 }

@@ -145,8 +145,9 @@ pub fn write_table(
     let mark = |ok: bool| if ok { p.good("✓") } else { p.bad("✗") };
     writeln!(
         out,
-        "  {:<14} {:>8} {:>8}",
-        p.strong("balance"),
+        "  {} {:>8} {:>8}",
+        // Pad before painting: escape codes would count as width.
+        p.strong(&format!("{:<14}", "balance")),
         "left",
         "right"
     )?;
