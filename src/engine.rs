@@ -10,6 +10,7 @@ use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::document::{Line, classify};
 use crate::host::Host;
 use crate::lint::{FileLints, Levels};
+use crate::notation::latex_input::{looks_like_latex, normalise};
 use crate::notation::{Reaction, parse_reaction};
 use std::io::{self, BufRead};
 use std::sync::Arc;
@@ -205,7 +206,23 @@ impl<'s> Checker<'s> {
                 Ok(())
             }
             Line::Reaction { label, reaction } => {
-                let (parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
+                // LaTeX pasted from a manuscript is rewritten as plain notation
+                // first, unless the parser reads it as it is.
+                let (mut parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
+                let mut latex = None;
+                let latex_source = &text[reaction.clone()];
+                if parsed.is_none() && looks_like_latex(latex_source) {
+                    match normalise(latex_source) {
+                        Ok(n) => {
+                            let (p, d) = parse_reaction(&n.text, 0..n.text.len());
+                            parsed = p;
+                            diagnostics = d;
+                            diagnostics.extend(n.notes.iter().cloned());
+                            latex = Some(n);
+                        }
+                        Err(d) => diagnostics = vec![relocate_by(d, reaction.start)],
+                    }
+                }
                 let verdict = parsed
                     .as_ref()
                     .map(|r| check_reaction(r, state.host.as_deref()));
@@ -231,6 +248,12 @@ impl<'s> Checker<'s> {
                         r,
                         state.host.as_deref(),
                     ));
+                }
+                if let Some(n) = &latex {
+                    diagnostics = diagnostics
+                        .into_iter()
+                        .map(|d| if d.code == Code::DuplicateLabel { d } else { n.relocate(d, reaction.start) })
+                        .collect();
                 }
                 let mut diagnostics: Vec<Diagnostic> = diagnostics
                     .into_iter()
@@ -282,6 +305,11 @@ impl<'s> Checker<'s> {
         self.sink.finish(&self.summary)?;
         Ok(self.summary)
     }
+}
+
+fn relocate_by(mut d: Diagnostic, offset: usize) -> Diagnostic {
+    d.span = d.span.start + offset..d.span.end + offset;
+    d
 }
 
 /// A reaction report that owns its data, for checking files on other threads

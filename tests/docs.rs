@@ -96,6 +96,7 @@ fn every_example_file_runs() {
 fn every_readme_command_runs() {
     let readme = fs::read_to_string(repo("README.md")).expect("README.md");
     let mut ran = 0;
+    let scratch = tempfile::tempdir().expect("temp dir");
     for line in blocks(&readme, "console") {
         let Some(command) = line.strip_prefix("$ ") else {
             continue;
@@ -107,9 +108,13 @@ fn every_readme_command_runs() {
         } else {
             continue;
         };
-        let words = split_words(args);
+        // Run in a scratch folder so files the commands write stay out of the tree.
+        let words: Vec<String> = split_words(args)
+            .into_iter()
+            .map(|w| if w.starts_with("examples/") || w == "examples" { repo(&w) } else { w })
+            .collect();
         let words: Vec<&str> = words.iter().map(String::as_str).collect();
-        let run = lacuna(&words, None);
+        let run = crate::support::lacuna_in(scratch.path().to_str().expect("utf-8 path"), &words, None);
         assert!(
             run.code == 0 || run.code == 1,
             "README command `{command}` exited {}:\n{}",
