@@ -76,11 +76,20 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
         }
     }
     if overflow {
-        checker.diags.push(Diagnostic::new(
-            Code::Number,
-            reaction.span.clone(),
-            "the sums of this reaction grew beyond the exact range",
-        ));
+        // The sums are not trustworthy: report that alone, and no balance.
+        checker.diags.push(
+            Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range")
+                .with_help("use smaller coefficients; the balances are exact, so they cannot be evaluated approximately"),
+        );
+        return Verdict {
+            balance: Balance {
+                mass: false,
+                charge: false,
+                site: None,
+            },
+            table,
+            diagnostics: checker.diags,
+        };
     }
     let mass = table.elements.iter().all(|(_, l, r)| l == r);
     let charge = table.charge.0 == table.charge.1;
@@ -142,6 +151,9 @@ fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> bool {
     let Some((_, count0, l0, r0)) = sites.first() else {
         return true;
     };
+    if *count0 == Q::from_integer(0) {
+        return false;
+    }
     let lambda = (r0 - l0) / count0;
     sites.iter().all(|(_, count, l, r)| r - l == lambda * count)
 }

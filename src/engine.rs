@@ -252,7 +252,13 @@ impl<'s> Checker<'s> {
                 if let Some(n) = &latex {
                     diagnostics = diagnostics
                         .into_iter()
-                        .map(|d| if d.code == Code::DuplicateLabel { d } else { n.relocate(d, reaction.start) })
+                        .map(|d| {
+                            if d.code == Code::DuplicateLabel {
+                                d
+                            } else {
+                                n.relocate(d, reaction.start)
+                            }
+                        })
                         .collect();
                 }
                 let mut diagnostics: Vec<Diagnostic> = diagnostics

@@ -93,6 +93,10 @@ impl Host {
             ]);
         }
         let formula = merge(parse_formula(source, formula_span.clone())?);
+        if let Some((z, _)) = formula.atoms.iter().find(|(_, n)| *n <= Q::from_integer(0)) {
+            return Err(vec![Diagnostic::new(Code::HostFormula, formula_span, format!("{} has a count of zero in the host formula", symbol(*z)))
+                .with_help("every element of a host occurs at least once per formula unit; drop it or give its count")]);
+        }
         let formula_text = source[formula_span.clone()].to_string();
         let sublattices = match sites_part {
             Some((offset, decl)) => explicit_sites(offset, decl, &formula, &formula_span)?,

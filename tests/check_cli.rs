@@ -234,11 +234,33 @@ fn quiet_and_verbose() {
 fn latex_pasted_from_a_manuscript_is_checked_with_its_own_columns() {
     // source: IUPAC Red Book 2005, IR-11.4 notation, typeset as manuscripts do (common practice).
     let text = r"\mathrm{Y_2O_3} \xrightarrow{\mathrm{ZrO_2}} 2\,\mathrm{Y}_{\mathrm{Zr}}^{\prime} + 3\,\mathrm{O}_{\mathrm{O}}^{\times} + V_{\mathrm{O}}^{\bullet}";
-    let run = expect(&["check", "--host", "ZrO2", "--format", "gnu", "-r", text], None, 1);
+    let run = expect(
+        &["check", "--host", "ZrO2", "--format", "gnu", "-r", text],
+        None,
+        1,
+    );
     let column = text.find("V_{").expect("vacancy") + 1;
-    assert!(run.stdout.starts_with(&format!("<inline>:1:{column}: error: charge does not balance")), "{}", run.stdout);
+    assert!(
+        run.stdout.starts_with(&format!(
+            "<inline>:1:{column}: error: charge does not balance"
+        )),
+        "{}",
+        run.stdout
+    );
     let fixed = text.replace(r"^{\bullet}", r"^{\bullet\bullet}");
     expect(&["check", "--host", "ZrO2", "-r", &fixed], None, 0);
-    let run = expect(&["check", "--host", "ZrO2", "--format", "gnu", "-r", r"\mathrm{O}_{\mathrm{O}} \rightarrow \frob{V}"], None, 1);
+    let run = expect(
+        &[
+            "check",
+            "--host",
+            "ZrO2",
+            "--format",
+            "gnu",
+            "-r",
+            r"\mathrm{O}_{\mathrm{O}} \rightarrow \frob{V}",
+        ],
+        None,
+        1,
+    );
     assert!(run.stdout.contains("[T801]"), "{}", run.stdout);
 }

@@ -111,10 +111,17 @@ fn every_readme_command_runs() {
         // Run in a scratch folder so files the commands write stay out of the tree.
         let words: Vec<String> = split_words(args)
             .into_iter()
-            .map(|w| if w.starts_with("examples/") || w == "examples" { repo(&w) } else { w })
+            .map(|w| {
+                if w.starts_with("examples/") || w == "examples" {
+                    repo(&w)
+                } else {
+                    w
+                }
+            })
             .collect();
         let words: Vec<&str> = words.iter().map(String::as_str).collect();
-        let run = crate::support::lacuna_in(scratch.path().to_str().expect("utf-8 path"), &words, None);
+        let run =
+            crate::support::lacuna_in(scratch.path().to_str().expect("utf-8 path"), &words, None);
         assert!(
             run.code == 0 || run.code == 1,
             "README command `{command}` exited {}:\n{}",

@@ -353,7 +353,10 @@ fn every_walkthrough_command_runs() {
     let mut ran = 0;
     for block in blocks(&doc, "console") {
         for line in block.lines() {
-            let Some(args) = line.strip_prefix("$ lacuna ").filter(|a| a.starts_with("fit ")) else {
+            let Some(args) = line
+                .strip_prefix("$ lacuna ")
+                .filter(|a| a.starts_with("fit "))
+            else {
                 continue;
             };
             // Run in a scratch folder so written files stay out of the tree.
