@@ -229,7 +229,11 @@ impl<W: Write> Sink for HumanSink<W> {
         }
         if let Some(verdict) = &report.verdict {
             let b = verdict.balance;
-            if !b.mass || !b.charge || b.site == Some(false) {
+            let overflowed = report
+                .diagnostics
+                .iter()
+                .any(|d| d.code == crate::diagnostic::Code::Number);
+            if (!b.mass || !b.charge || b.site == Some(false)) && !overflowed {
                 write_table(
                     &mut self.out,
                     self.palette,
