@@ -5,6 +5,7 @@
 //! reaction files, `engine` runs checks over sources, `render` writes the
 //! results, and `cli` is the thin command-line layer over all of it.
 
+pub mod balance;
 pub mod check;
 pub mod cli;
 pub mod diagnostic;

@@ -2,6 +2,7 @@
 //! a thin layer over the library. Exit codes: 0 all good, 1 the input has
 //! problems, 2 usage or I/O error.
 
+mod balance;
 mod check;
 
 use crate::host::Host;
@@ -22,6 +23,9 @@ pub struct Cli {
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
+    /// Find the coefficients of a reaction from its species (exact; unique,
+    /// several or none, each explained).
+    Balance(balance::BalanceArgs),
 }
 
 /// Output format of `check`.
@@ -66,6 +70,7 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Balance(args) => balance::run(&args),
     }
 }
 
