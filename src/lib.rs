@@ -13,6 +13,7 @@ pub mod document;
 pub mod elements;
 pub mod engine;
 pub mod host;
+pub mod native;
 pub mod notation;
 pub mod number;
 pub mod render;

@@ -148,6 +148,30 @@ pub fn binary(cation: u8, cation_charge: i64, anion: u8, anion_charge: i64) -> O
     })
 }
 
+/// The first anion sublattice of a host (the one dopant compounds and
+/// co-reactant oxides are written with).
+pub fn main_anion(host: &Host) -> Option<usize> {
+    host.sublattices
+        .iter()
+        .position(|s| s.charge < Q::from_integer(0) && s.charge.is_integer())
+}
+
+/// The binary compound of a sublattice's ion with the host's main anion:
+/// `TiO2` for the Ti site of BaTiO3, the co-reactant that keeps its sites.
+pub fn component(host: &Host, index: usize) -> Option<Formula> {
+    let sub = host.sublattices.get(index)?;
+    let anion = host.sublattices.get(main_anion(host)?)?;
+    if !sub.charge.is_integer() {
+        return None;
+    }
+    binary(
+        sub.element,
+        *sub.charge.numer(),
+        anion.element,
+        *anion.charge.numer(),
+    )
+}
+
 /// A condensed compound such as `TiO2`.
 pub fn compound(formula: Formula) -> Entity {
     Entity::Compound(Compound {

@@ -4,6 +4,7 @@
 
 mod balance;
 mod check;
+mod native;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -26,6 +27,9 @@ pub enum Command {
     /// Find the coefficients of a reaction from its species (exact; unique,
     /// several or none, each explained).
     Balance(balance::BalanceArgs),
+    /// List a host's intrinsic defect reactions (Schottky, Frenkel,
+    /// electronic, redox, antisite), balanced.
+    Native(native::NativeArgs),
 }
 
 /// Output format of `check`.
@@ -71,6 +75,7 @@ pub fn main() -> ExitCode {
     match cli.command {
         Command::Check(args) => check::run(&args),
         Command::Balance(args) => balance::run(&args),
+        Command::Native(args) => native::run(&args),
     }
 }
 
