@@ -10,6 +10,7 @@ pub mod check;
 pub mod cli;
 pub mod diagnostic;
 pub mod document;
+pub mod dope;
 pub mod elements;
 pub mod engine;
 pub mod host;

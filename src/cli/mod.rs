@@ -4,6 +4,7 @@
 
 mod balance;
 mod check;
+mod dope;
 mod native;
 
 use crate::host::Host;
@@ -30,6 +31,9 @@ pub enum Command {
     /// List a host's intrinsic defect reactions (Schottky, Frenkel,
     /// electronic, redox, antisite), balanced.
     Native(native::NativeArgs),
+    /// Propose every balanced way a dopant can enter a host, ranked by size
+    /// and charge match; convert dopant levels between units.
+    Dope(dope::DopeArgs),
 }
 
 /// Output format of `check`.
@@ -76,6 +80,7 @@ pub fn main() -> ExitCode {
         Command::Check(args) => check::run(&args),
         Command::Balance(args) => balance::run(&args),
         Command::Native(args) => native::run(&args),
+        Command::Dope(args) => dope::run(&args),
     }
 }
 
