@@ -70,6 +70,12 @@ pub fn native_reactions(host: &Host) -> Vec<(String, Reaction)> {
 
 /// Builds and balances every family that applies to `host`.
 pub fn catalogue(host: &Host) -> Catalogue {
+    if !crate::balance::build::has_sites(host) {
+        return Catalogue {
+            reactions: Vec::new(),
+            skipped: Vec::new(),
+        };
+    }
     let b = Builder::new(host, &[]);
     let zero = Q::from_integer(0);
     let integer = |i: usize| host.sublattices[i].charge.is_integer();
@@ -405,6 +411,16 @@ mod tests {
         assert_eq!(cat.skipped, ["Fe:B"]);
         assert!(cat.reactions.iter().all(|r| r.family != Family::Schottky));
         assert!(cat.reactions.iter().any(|r| r.name == "Frenkel (Fe:A)"));
+    }
+
+    #[test]
+    fn a_host_without_sites_gives_nothing_and_does_not_crash() {
+        let host = Host::from_spec("Zr0O0 sites Zr +4, O -2").unwrap();
+        assert!(catalogue(&host).reactions.is_empty());
+        let text = "Y2O3 -> Y_Zr' + V_O..";
+        let (r, _) = parse_reaction(text, 0..text.len());
+        let outcome = balance::balance(&r.unwrap(), Some(&host), Options::default());
+        assert_eq!(outcome.status, Status::None);
     }
 
     #[test]

@@ -148,6 +148,16 @@ pub fn binary(cation: u8, cation_charge: i64, anion: u8, anion_charge: i64) -> O
     })
 }
 
+/// Whether every sublattice has sites (a formula such as `Zr0O0` with
+/// explicit charges gives empty ones, which nothing can be balanced against).
+pub fn has_sites(host: &Host) -> bool {
+    !host.sublattices.is_empty()
+        && host
+            .sublattices
+            .iter()
+            .all(|s| s.count > Q::from_integer(0))
+}
+
 /// The first anion sublattice of a host (the one dopant compounds and
 /// co-reactant oxides are written with).
 pub fn main_anion(host: &Host) -> Option<usize> {

@@ -239,7 +239,11 @@ impl System<'_> {
                 site_species_text(sub, true)
             )
         };
-        let Some(v) = v else {
+        let counted = host
+            .sublattices
+            .iter()
+            .all(|s| s.count > Q::from_integer(0));
+        let (Some(v), true) = (v, counted) else {
             let all: Vec<String> = host.sublattices.iter().map(kind_examples).collect();
             return format!(
                 "regular sites are created only in the ratio {}: add {}",

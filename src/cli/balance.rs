@@ -142,6 +142,12 @@ pub fn run(args: &BalanceArgs) -> ExitCode {
         Ok(host) => host,
         Err(code) => return code,
     };
+    if host
+        .as_ref()
+        .is_some_and(|h| !crate::balance::build::has_sites(h))
+    {
+        return fail("the --host value has a sublattice with no sites (a zero count)");
+    }
     let (outcome, diagnostics) = balance_text(&text, host.as_ref(), !args.free);
     let result = match args.format {
         OutputFormat::Human => human(args, &text, outcome.as_ref(), &diagnostics),

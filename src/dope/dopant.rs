@@ -68,6 +68,14 @@ pub fn parse_dopant(text: &str, host: &Host) -> Result<Dopant, Box<Diagnostic>> 
     if trimmed.is_empty() {
         return Err(error(text, 0..0, "no dopant given".into(), SPELLINGS));
     }
+    if !crate::balance::build::has_sites(host) {
+        return Err(error(
+            text,
+            all,
+            format!("{} has a sublattice with no sites", host.formula_text),
+            "give every sublattice a count above zero",
+        ));
+    }
     let Some(anion) = main_anion(host).and_then(|i| host.sublattices.get(i)) else {
         return Err(error(
             text,

@@ -301,6 +301,12 @@ pub fn mechanisms(
             ),
         )
     };
+    if !crate::balance::build::has_sites(host) {
+        return Err(unsuitable(format!(
+            "{} has a sublattice with no sites",
+            host.formula_text
+        )));
+    }
     let Some(anion) = main_anion(host) else {
         return Err(unsuitable(format!(
             "{} has no anion sublattice",

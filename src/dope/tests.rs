@@ -249,3 +249,47 @@ fn isovalent_dopants_need_no_compensation() {
     );
     assert_eq!(r.mechanisms[0].compensation, Compensation::None);
 }
+
+/// Every example in grammar/balance.md reads.
+#[test]
+fn grammar_examples_read() {
+    let doc = include_str!("../../grammar/balance.md");
+    let block = |tag: &str| -> Vec<&str> {
+        let start = doc
+            .find(&format!("```{tag}\n"))
+            .unwrap_or_else(|| panic!("no {tag} block"));
+        let body = &doc[start + tag.len() + 4..];
+        let end = body.find("```").expect("closed block");
+        body[..end]
+            .lines()
+            .filter(|l| !l.trim().is_empty())
+            .collect()
+    };
+    let host = Host::from_spec("ZrO2").unwrap();
+    let dopants = block("dopant");
+    assert!(dopants.len() >= 8);
+    for d in dopants {
+        let host = if d.starts_with("Li") {
+            Host::from_spec("NiO").unwrap()
+        } else if d.starts_with("Fe") {
+            Host::from_spec("MgO").unwrap()
+        } else if d.starts_with("Nb") {
+            Host::from_spec("TiO2").unwrap()
+        } else {
+            host.clone()
+        };
+        assert!(parse_dopant(d, &host).is_ok(), "{d}");
+    }
+    let levels = block("level");
+    assert!(levels.len() >= 6);
+    for l in levels {
+        assert!(level::parse_level(l).is_ok(), "{l}");
+    }
+}
+
+#[test]
+fn a_host_without_sites_is_refused() {
+    let host = Host::from_spec("Zr0O0 sites Zr +4, O -2").unwrap();
+    let e = parse_dopant("Y+3", &host).expect_err("no sites");
+    assert_eq!(e.code, Code::Dopant);
+}
