@@ -141,6 +141,8 @@ codes! {
         "Dopant mechanisms and native defects need a host whose sublattices carry integer formal charges; dopant mechanisms also need at least one cation and one anion sublattice.";
     Coordination = "K609", Error, "coordination number",
         "A coordination override is written `SITE=N`, e.g. `--cn Zr=8` or `--cn Fe:A=4`, with a site of the host and N between 1 and 16.";
+    WrittenTwice = "K610", Error, "species written twice",
+        "The balancer gives each species one coefficient, so a species written twice (on one side or on both) leaves a meaningless freedom: X → X. Write it once; its coefficient is found.";
 }
 
 impl fmt::Display for Code {

@@ -216,6 +216,10 @@ proptest! {
         let outcome = balance(&parse(&text), Some(&host), Options::default());
         prop_assert_eq!(outcome.status, Status::Unique);
         prop_assert_eq!(terms_of(&outcome.reactions[0].reaction), terms_of(&integer), "{}", text);
+        // What balance prints passes check, in both forms.
+        for shown in [&outcome.reactions[0].reaction, &outcome.reactions[0].conventional] {
+            passes_check(shown, &host).map_err(|e| TestCaseError::fail(format!("balance {text}: {e}")))?;
+        }
 
         // One species written on the wrong side comes back to its own side.
         let total = left.len() + right.len();

@@ -6,12 +6,13 @@
 //! fix (an anion-site species, an electronic defect, O2(g), …), found by
 //! dropping one law at a time and balancing what is left.
 
+use super::build::{Builder, gas, term};
 use super::matrix::{TooLarge, nullspace};
 use super::{Law, Status, System, Unknown, orient, symbol};
 use crate::diagnostic::{Code, Diagnostic};
 use crate::host::Sublattice;
 use crate::notation::{
-    Formula, MarkStyle, Occupant, Site, Species, Style, VacancySpelling, render_reaction,
+    Entity, Formula, MarkStyle, Occupant, Site, Species, Style, VacancySpelling, render_reaction,
     render_species, render_term,
 };
 use crate::number::{self, Q};
@@ -58,7 +59,8 @@ impl System<'_> {
     }
 
     /// Names the law that cannot be met: the one whose removal lets the
-    /// species balance, with the kind of species that would fix it.
+    /// species balance, with the kind of species that would fix it, and
+    /// the single standard species whose addition balances the reaction.
     pub(super) fn explain_none(&self) -> Result<Vec<Diagnostic>, TooLarge> {
         let mut groups: Vec<Law> = Vec::new();
         for law in &self.laws {
@@ -71,11 +73,29 @@ impl System<'_> {
                 .filter(|&i| g.contains(&self.laws[i]))
                 .collect()
         };
+        let mut fixes = self.additions(&groups)?;
+        fixes.sort_by_key(|f| (f.rank, f.moved));
+        let fix_text = |d: &mut Diagnostic, fixes: &mut Vec<Fix>, laws: &[Law]| {
+            // Species that carry exactly the failing laws first.
+            fixes.sort_by_key(|f| (f.laws != laws, f.rank, f.moved));
+            let shown: Vec<String> = fixes
+                .iter()
+                .take(3)
+                .map(|f| format!("adding {} balances it: {}", f.species, f.reaction))
+                .collect();
+            if !shown.is_empty() {
+                let before = d.help.take().unwrap_or_default();
+                d.help = Some(format!("{before}; {}", shown.join("; or ")));
+            }
+        };
         // Each law whose removal lets the species balance is a candidate.
-        // Prefer the one whose balance uses every species on its written
-        // side, then charge and sites over mass: a mark or a forgotten site
-        // partner is the usual slip, an element with no source is rarer.
-        let mut best: Option<((bool, bool, u8), Diagnostic)> = None;
+        // Prefer the one a single added species fixes, then the one whose
+        // balance uses every species on its written side, then charge and
+        // sites over mass: a mark or a forgotten site partner is the usual
+        // slip, an element with no source is rarer.
+        // (ranking key, law, diagnostic); the smallest key wins.
+        type Candidate = ((bool, bool, bool, u8), Law, Diagnostic);
+        let mut best: Option<Candidate> = None;
         for law in &groups {
             let basis = nullspace(&self.matrix.without_rows(&rows_of(&[*law])))?;
             if basis.is_empty() {
@@ -86,44 +106,72 @@ impl System<'_> {
             let unique = basis.len() == 1;
             let full = v.iter().all(|x| *x != 0);
             let consistent = v.iter().all(|x| *x > 0);
-            let order = match law {
-                Law::Charge => 0,
-                Law::Sites => 1,
-                Law::Element(_) => 2,
-            };
-            let key = (!(full && consistent), !full, order);
-            if best.as_ref().is_none_or(|(k, _)| key < *k) {
+            let fixed = fixes.iter().any(|f| f.laws == [*law]);
+            let key = (!fixed, !(full && consistent), !full, law_order(*law));
+            if best.as_ref().is_none_or(|(k, _, _)| key < *k) {
                 best = Some((
                     key,
+                    *law,
                     self.law_diagnostic(*law, unique.then_some(v.as_slice())),
                 ));
             }
         }
-        if let Some((_, d)) = best {
+        if let Some((_, law, mut d)) = best {
+            fix_text(&mut d, &mut fixes, &[law]);
             return Ok(vec![d]);
         }
-        // No single law is at fault: look for a pair.
+        // No single law is at fault. The likeliest forgotten species names the laws.
+        if let Some(laws) = fixes.first().map(|f| f.laws.clone()) {
+            let names: Vec<String> = laws.iter().map(|l| self.law_name(*l)).collect();
+            let mut d = Diagnostic::new(
+                Code::CannotBalance,
+                self.reaction.span.clone(),
+                format!(
+                    "cannot balance: {} cannot {} be met with these species",
+                    names.join(" and "),
+                    if names.len() == 2 { "both" } else { "all" }
+                ),
+            );
+            d.help = Some(
+                laws.iter()
+                    .map(|l| self.law_fix(*l, None))
+                    .collect::<Vec<_>>()
+                    .join("; and "),
+            );
+            fix_text(&mut d, &mut fixes, &laws);
+            return Ok(vec![d]);
+        }
+        let mut best_pair: Option<((bool, bool, u8), Law, Law)> = None;
         for (i, a) in groups.iter().enumerate() {
             for b in &groups[i + 1..] {
                 let basis = nullspace(&self.matrix.without_rows(&rows_of(&[*a, *b])))?;
-                if !basis.is_empty() {
-                    let mut d = Diagnostic::new(
-                        Code::CannotBalance,
-                        self.reaction.span.clone(),
-                        format!(
-                            "cannot balance: {} and {} cannot both be met with these species",
-                            self.law_name(*a),
-                            self.law_name(*b)
-                        ),
-                    );
-                    d.help = Some(format!(
-                        "{}; and {}",
-                        self.law_fix(*a, None),
-                        self.law_fix(*b, None)
-                    ));
-                    return Ok(vec![d]);
+                let Some(v) = basis.first() else { continue };
+                let mut v = v.clone();
+                orient(&mut v);
+                let full = v.iter().all(|x| *x != 0);
+                let consistent = v.iter().all(|x| *x > 0);
+                let key = (!(full && consistent), !full, law_order(*a) + law_order(*b));
+                if best_pair.as_ref().is_none_or(|(k, _, _)| key < *k) {
+                    best_pair = Some((key, *a, *b));
                 }
             }
+        }
+        if let Some((_, a, b)) = best_pair {
+            let d = Diagnostic::new(
+                Code::CannotBalance,
+                self.reaction.span.clone(),
+                format!(
+                    "cannot balance: {} and {} cannot both be met with these species",
+                    self.law_name(a),
+                    self.law_name(b)
+                ),
+            )
+            .with_help(format!(
+                "{}; and {}",
+                self.law_fix(a, None),
+                self.law_fix(b, None)
+            ));
+            return Ok(vec![d]);
         }
         Ok(vec![
             Diagnostic::new(
@@ -133,6 +181,96 @@ impl System<'_> {
             )
             .with_help("more species are needed: each element needs a source and a sink, charge needs a compensating defect, and the host's sites need their partners (e.g. `O_O×`)"),
         ])
+    }
+
+    /// Standard species of the host (regular and vacant sites, host-ion
+    /// interstitials, e′, h•, the anion gas) whose addition alone makes the
+    /// reaction balance in exactly one way with every written species on
+    /// its side: (species, balanced reaction, laws it carries).
+    fn additions(&self, groups: &[Law]) -> Result<Vec<Fix>, TooLarge> {
+        let mut candidates: Vec<(Entity, u8)> = Vec::new();
+        if let Some(host) = self.host {
+            let present: Vec<u8> = self
+                .unknowns
+                .iter()
+                .flat_map(|u| u.content.elements.iter().map(|(z, _)| *z))
+                .collect();
+            let b = Builder::new(host, &present);
+            for i in 0..host.sublattices.len() {
+                let sub = &host.sublattices[i];
+                candidates.extend(b.regular(i).map(|s| (Entity::Species(s), 0)));
+                candidates.extend(b.vacancy(i).map(|s| (Entity::Species(s), 3)));
+                if sub.charge.is_integer() {
+                    candidates.extend(
+                        b.interstitial(sub.element, *sub.charge.numer())
+                            .map(|s| (Entity::Species(s), 4)),
+                    );
+                }
+                if sub.charge < Q::from_integer(0) {
+                    candidates.push((gas(sub.element), 1));
+                }
+            }
+            candidates.push((Entity::Species(b.electron()), 2));
+            candidates.push((Entity::Species(b.hole()), 2));
+        }
+        let written: Vec<String> = self
+            .unknowns
+            .iter()
+            .map(|u| render_term(&super::plain_term(u.term), Style::Unicode))
+            .collect();
+        let mut out = Vec::new();
+        for (candidate, rank) in candidates {
+            let added = term(candidate);
+            let text = render_term(&added, Style::Unicode);
+            if written.contains(&text) {
+                continue;
+            }
+            let mut trial = self.reaction.clone();
+            trial.right.retain(|t| t.entity != Entity::Nil);
+            trial.right.push(added.clone());
+            for t in trial.left.iter_mut().chain(trial.right.iter_mut()) {
+                t.coefficient_written = false;
+            }
+            let Ok(mut system) = System::build(&trial, self.host) else {
+                continue;
+            };
+            system.explain = false;
+            let outcome = system.solve_free()?;
+            if outcome.status != Status::Unique {
+                continue;
+            }
+            let Some(balanced) = outcome.reactions.first() else {
+                continue;
+            };
+            let n = balanced.terms.len();
+            let clean = balanced.terms.iter().enumerate().all(|(i, t)| {
+                t.coefficient > Q::from_integer(0) && (i + 1 == n || t.side == t.written)
+            });
+            if !clean {
+                continue;
+            }
+            let moved = balanced.terms.last().is_some_and(|t| t.side != t.written);
+            let content = super::content_of(&added.entity, self.host, &(0..0)).ok();
+            let laws: Vec<Law> = groups
+                .iter()
+                .copied()
+                .filter(|law| {
+                    content.as_ref().is_some_and(|c| match law {
+                        Law::Element(z) => c.count(*z) != Q::from_integer(0),
+                        Law::Charge => c.charge != Q::from_integer(0),
+                        Law::Sites => c.sites.iter().any(|s| *s != Q::from_integer(0)),
+                    })
+                })
+                .collect();
+            out.push(Fix {
+                species: text,
+                reaction: render_reaction(&balanced.conventional, Style::Unicode),
+                laws,
+                rank,
+                moved,
+            });
+        }
+        Ok(out)
     }
 
     fn law_name(&self, law: Law) -> String {
@@ -289,6 +427,30 @@ impl System<'_> {
             host.ratio_text(),
             short.join("; ")
         )
+    }
+}
+
+/// A species whose addition balances the reaction.
+struct Fix {
+    /// The added species as text.
+    species: String,
+    /// The balanced reaction with it.
+    reaction: String,
+    /// The laws the species carries (of those in the reaction).
+    laws: Vec<Law>,
+    /// How often such a species is the one forgotten: regular lattice
+    /// species and the gas first, then carriers, vacancies, interstitials.
+    rank: u8,
+    /// It had to go to the left.
+    moved: bool,
+}
+
+/// Charge first, then sites, then mass (see `explain_none`).
+fn law_order(law: Law) -> u8 {
+    match law {
+        Law::Charge => 0,
+        Law::Sites => 1,
+        Law::Element(_) => 2,
     }
 }
 

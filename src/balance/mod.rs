@@ -9,7 +9,7 @@
 //! The unknowns are the coefficients; each conservation law (mass of one
 //! element, charge, the host's site ratio) is one linear equation with
 //! integer entries, so the balanced reactions are the integer nullspace of a
-//! small matrix ([`matrix`]). Everything is exact: no floating point.
+//! small matrix (the `matrix` module). Everything is exact: no floating point.
 
 pub mod build;
 mod explain;
@@ -253,6 +253,8 @@ struct System<'r> {
     /// The law behind each matrix row.
     laws: Vec<Law>,
     matrix: Matrix,
+    /// Explain a failure (off when trying out additions, which must not recurse).
+    explain: bool,
 }
 
 fn symbol(z: u8) -> &'static str {
@@ -350,6 +352,31 @@ fn content_of(
     Ok(content)
 }
 
+/// What a term stands for, without spans or spelling: equal for the same
+/// species written twice.
+#[derive(Debug, PartialEq, Eq)]
+enum Identity {
+    Species(crate::notation::SpeciesKey),
+    Compound(crate::notation::Formula, Option<Phase>),
+    Other(String),
+}
+
+fn identity(entity: &Entity) -> Identity {
+    match entity {
+        Entity::Species(s) => Identity::Species(s.key()),
+        Entity::Compound(c) => Identity::Compound(c.formula.clone(), c.phase),
+        other => Identity::Other(render_term(
+            &Term {
+                coefficient: Q::from_integer(1),
+                coefficient_written: false,
+                entity: other.clone(),
+                span: 0..0,
+            },
+            Style::Ascii,
+        )),
+    }
+}
+
 /// Scales a row of fractions to coprime integers with the same ratios.
 fn integer_row(row: &[Q]) -> Result<Vec<i64>, TooLarge> {
     let mut lcm: i64 = 1;
@@ -395,6 +422,21 @@ impl<'r> System<'r> {
                     });
                 }
                 Err(d) => diagnostics.push(*d),
+            }
+        }
+        // The same species twice would only add the freedom X → X.
+        let keys: Vec<Identity> = unknowns.iter().map(|u| identity(&u.term.entity)).collect();
+        for (i, u) in unknowns.iter().enumerate() {
+            if keys[..i].contains(&keys[i]) {
+                let text = render_term(&plain_term(u.term), Style::Unicode);
+                diagnostics.push(
+                    Diagnostic::new(
+                        Code::WrittenTwice,
+                        entity_span(u.term),
+                        format!("{text} is written twice"),
+                    )
+                    .with_help("write each species once; the balancer finds its coefficient"),
+                );
             }
         }
         if !diagnostics.is_empty() {
@@ -467,6 +509,7 @@ impl<'r> System<'r> {
             unknowns,
             laws: kept_laws,
             matrix: Matrix::new(integer_rows, cols),
+            explain: true,
         })
     }
 
@@ -478,7 +521,8 @@ impl<'r> System<'r> {
     fn solve_free(&self) -> Result<Outcome, TooLarge> {
         let basis = nullspace(&self.matrix)?;
         match basis.len() {
-            0 => Ok(none(self.explain_none()?)),
+            0 if self.explain => Ok(none(self.explain_none()?)),
+            0 => Ok(none(Vec::new())),
             1 => {
                 let mut v = basis.into_iter().next().unwrap_or_default();
                 orient(&mut v);

@@ -271,15 +271,57 @@ fn none_names_the_law_and_the_fix() {
         d[0].help.as_deref().is_some_and(|h| h.contains("O2(g)")),
         "{d:?}"
     );
-    // No anion-site partner: the site ratio cannot hold.
+    // Electronic compensation of Al in MgO without the gas: the oxygen
+    // has nowhere to go, and O2(g) is the species that fixes it.
+    // source: Chiang, Birnie & Kingery 1997, ch. 2 (from memory) for the fixed form.
     let d = none_codes("MgO", "Al2O3 -> Al_Mg. + O_O + e'");
+    assert_eq!(d.len(), 1, "{d:?}");
+    assert!(d[0].message.contains("mass of O"), "{d:?}");
+    assert!(
+        d[0].help
+            .as_deref()
+            .is_some_and(|h| h
+                .contains("adding O2(g) balances it: Al2O3 → 2 Al_Mg• + 2 O_O× + 2 e′ + ½ O2(g)")),
+        "{d:?}"
+    );
+    // A cation leaving its site for an interstitial one without its vacancy:
+    // only the site ratio fails, short of a cation-site species.
+    let d = none_codes("ZrO2", "Zr_Zr -> Zr_i.... + e'");
     assert_eq!(d.len(), 1, "{d:?}");
     assert!(d[0].message.contains("site ratio"), "{d:?}");
     assert!(
         d[0].help
             .as_deref()
-            .is_some_and(|h| h.contains("Mg 1 more (a cation-site species")),
+            .is_some_and(|h| h.contains("Zr 1 more (a cation-site species")),
         "{d:?}"
+    );
+    // The same species twice is refused, not turned into X → X.
+    let d = none_codes("MgO", "NiO -> Ni_Mg + O_O + O_O");
+    assert_eq!(d[0].code, Code::WrittenTwice, "{d:?}");
+}
+
+#[test]
+fn none_proposes_the_forgotten_species() {
+    // O_O× forgotten: oxygen mass and the site ratio fail together, and
+    // adding the regular oxide ion is the first fix offered.
+    let d = none_codes("ZrO2", "Y2O3 -> Y_Zr' + V_O..");
+    assert_eq!(d.len(), 1, "{d:?}");
+    assert!(
+        d[0].message
+            .contains("the mass of O and the ZrO2 site ratio"),
+        "{d:?}"
+    );
+    let help = d[0].help.as_deref().unwrap_or("");
+    assert!(
+        help.contains("adding O_O× balances it: Y2O3 → 2 Y_Zr′ + V_O•• + 3 O_O×"),
+        "{help}"
+    );
+    // The gas forgotten in a reduction.
+    let d = none_codes("CeO2", "O_O -> V_O.. + e'");
+    let help = d[0].help.as_deref().unwrap_or("");
+    assert!(
+        help.contains("adding O2(g) balances it: O_O× → V_O•• + 2 e′ + ½ O2(g)"),
+        "{help}"
     );
 }
 
