@@ -282,7 +282,11 @@ fn finish(
                 t.coefficient_written = true;
             }
         }
-        let outcome = balance::balance(&built, Some(host), Options { keep_written });
+        let options = Options {
+            keep_written,
+            explain: false,
+        };
+        let outcome = balance::balance(&built, Some(host), options);
         let Some(balanced) = outcome.reactions.first() else {
             continue;
         };

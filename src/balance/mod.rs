@@ -83,6 +83,10 @@ pub struct Options {
     /// Keep the coefficients the user wrote (the `balance` command). Off,
     /// every coefficient is unknown (the hint `check` gives).
     pub keep_written: bool,
+    /// Explain a failure: name the law and try out species that would fix
+    /// it. Costs a dozen more balances; callers that only need the answer
+    /// (the `check` hint, `dope`, `native`) leave it off.
+    pub explain: bool,
 }
 
 /// One input term's coefficient in a balanced reaction.
@@ -127,10 +131,11 @@ pub struct Outcome {
 /// Balances the species of `reaction` against `host` (mass and charge only
 /// when there is no host).
 pub fn balance(reaction: &Reaction, host: Option<&Host>, options: Options) -> Outcome {
-    let system = match System::build(reaction, host) {
+    let mut system = match System::build(reaction, host) {
         Ok(s) => s,
         Err(diagnostics) => return none(diagnostics),
     };
+    system.explain = options.explain;
     if system.unknowns.is_empty() {
         return none(vec![
             Diagnostic::new(

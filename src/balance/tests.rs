@@ -16,7 +16,14 @@ fn host(spec: &str) -> Host {
 
 fn run(host_spec: &str, text: &str, keep_written: bool) -> Outcome {
     let host = host(host_spec);
-    balance(&parse(text), Some(&host), Options { keep_written })
+    balance(
+        &parse(text),
+        Some(&host),
+        Options {
+            keep_written,
+            explain: true,
+        },
+    )
 }
 
 /// Balances `species` (no coefficients) and compares with `expected`, a
@@ -354,7 +361,14 @@ fn several_gives_a_basis_and_names_the_free_species() {
 fn without_a_host_mass_and_charge_only() {
     // source: common practice (water formation)
     let reaction = parse("H2 + O2(g) -> H2O(g)");
-    let outcome = balance(&reaction, None, Options { keep_written: true });
+    let outcome = balance(
+        &reaction,
+        None,
+        Options {
+            keep_written: true,
+            explain: true,
+        },
+    );
     assert_eq!(outcome.status, Status::Unique);
     assert_eq!(
         render_reaction(&outcome.reactions[0].reaction, Style::Ascii),

@@ -198,7 +198,14 @@ fn balance_text(
                 diagnostics: Vec::new(),
             };
         }
-        balance::balance(&reaction, host, Options { keep_written })
+        balance::balance(
+            &reaction,
+            host,
+            Options {
+                keep_written,
+                explain: true,
+            },
+        )
     });
     if let Some(o) = &outcome {
         diagnostics.extend(o.diagnostics.iter().cloned());
