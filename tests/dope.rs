@@ -86,6 +86,12 @@ fn json_mechanisms_and_level() {
         .expect("vacancy");
     assert_eq!(vacancy["fraction"], "1/27");
     assert_eq!(vacancy["basis"], "of O sites");
+    assert!(
+        level["note"]
+            .as_str()
+            .is_some_and(|n| n.contains("dilute picture does not hold")),
+        "{level}"
+    );
 }
 
 #[test]

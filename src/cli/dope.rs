@@ -397,19 +397,24 @@ fn write_level(
     for (k, v) in rows {
         writeln!(out, "  {}  {v}", pad(&k, w))?;
     }
+    if let Some(note) = dilute_note(c) {
+        writeln!(out, "note: {note}")?;
+    }
+    Ok(())
+}
+
+/// Said whenever a defect fraction passes 1 %: the numbers stay exact
+/// bookkeeping, but the dilute-solution picture behind activities fails.
+fn dilute_note(c: &Composition) -> Option<&'static str> {
     let largest = c
         .defects
         .iter()
         .map(|d| d.fraction)
         .max()
         .unwrap_or_default();
-    if largest > Q::new(1, 100) {
-        writeln!(
-            out,
-            "note: above about 1 % defects interact and associate; these fractions are bookkeeping of the composition, not activities, and the dilute picture does not hold here"
-        )?;
-    }
-    Ok(())
+    (largest > Q::new(1, 100)).then_some(
+        "above about 1 % defects interact and associate; these fractions are bookkeeping of the composition, not activities, and the dilute picture does not hold here",
+    )
 }
 
 fn level_rows(
@@ -530,6 +535,7 @@ struct JsonLevel {
     cation_fraction: String,
     defects: Vec<JsonDefect>,
     dopant_per_cm3: Option<f64>,
+    note: Option<&'static str>,
 }
 
 #[derive(Serialize)]
@@ -632,6 +638,7 @@ fn to_json<'a>(
                     })
                     .collect(),
                 dopant_per_cm3: c.per_cm3,
+                note: dilute_note(c),
             }),
             _ => None,
         },
