@@ -159,6 +159,26 @@ codes! {
         "Workbench commands start with `/` (`/help` lists them). A command was unknown, or its arguments did not fit its usage.";
     WorkbenchFile = "T811", Error, "workbench file",
         "A reaction file could not be read or written. Saving never touches the old file until the new one is complete; a file that exists and is not the session's own is only replaced with `--replace`.";
+    CannotBalance = "K601", Error, "cannot balance",
+        "No choice of coefficients conserves mass of every element, charge and the host's site ratio with the species given. The message names the law that cannot be met and the kind of species that would fix it: an anion-site species, an electronic defect, O2(g), a compound that carries the missing element.";
+    OtherSide = "K602", Warning, "belongs on the other side",
+        "The only balanced reaction with these species needs a negative coefficient for this one: it is a product written as a reactant, or the reverse. The balanced form shows it on the side where it belongs.";
+    NoPart = "K603", Warning, "takes no part",
+        "The only balanced reaction with these species gives this one a coefficient of zero: it is not needed, or another species it should pair with is missing.";
+    SeveralBalanced = "K604", Note, "several balanced reactions",
+        "The species allow more than one independent balanced reaction (more species than independent conservation laws), so the coefficients are not determined. Every combination of the reactions shown balances; fixing a coefficient or removing one of the species that make it free gives one answer.";
+    WrittenCoefficients = "K605", Error, "written coefficients conflict",
+        "The balancer keeps the coefficients you wrote, and with those fixed no choice of the others balances. Leave the coefficient out to let Lacuna find it, or correct it.";
+    Dopant = "K606", Error, "dopant",
+        "A dopant is a compound that brings the host's anions (`Y2O3` for an oxide host, `CaCl2` for a chloride), or an ion with its oxidation state: `Y+3`, `Y3+`, `Fe(III)`, or a bare symbol when the element has one common positive state. See grammar/balance.md.";
+    Level = "K607", Error, "dopant level",
+        "A dopant level is a number with a unit: `8mol%` (mol % of the dopant compound), `14.8cat%` (dopant cations per 100 cations of its sublattice), `3.7site%` (the compensating defect per 100 sites of its sublattice), `1e21/cm3` (dopant atoms per cubic centimetre, needs --density or --cell). See grammar/balance.md.";
+    HostUnsuitable = "K608", Error, "host unsuitable",
+        "Dopant mechanisms and native defects need a host whose sublattices carry integer formal charges; dopant mechanisms also need at least one cation and one anion sublattice.";
+    Coordination = "K609", Error, "coordination number",
+        "A coordination override is written `SITE=N`, e.g. `--cn Zr=8` or `--cn Fe:A=4`, with a site of the host and N between 1 and 16.";
+    WrittenTwice = "K610", Error, "species written twice",
+        "The balancer gives each species one coefficient, so a species written twice (on one side or on both) leaves a meaningless freedom: X → X. Write it once; its coefficient is found.";
 }
 
 impl fmt::Display for Code {

@@ -273,7 +273,7 @@ mod tests {
             "{latex}"
         );
         let unicode = reaction(&r, Form::Unicode, Some(&host));
-        assert_eq!(unicode, "Y₂O₃ → 2 Y_Zr′ + V_O•• + 3 O_O×");
+        assert_eq!(unicode, "Y2O3 → 2 Y_Zr′ + V_O•• + 3 O_O×");
         let html = reaction(&r, Form::Html, Some(&host));
         assert!(html.contains("<rt>ZrO<sub>2</sub></rt>"), "{html}");
     }

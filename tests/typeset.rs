@@ -338,7 +338,7 @@ fn typeset_checks_and_says_what_it_could_not_check() {
         ])
         .assert()
         .code(1)
-        .stdout("O_O× → V_O• + 2 e′ + ½ O₂(g)\n")
+        .stdout("O_O× → V_O• + 2 e′ + ½ O2(g)\n")
         .stderr(predicate::str::contains("error[B302]"));
     cargo_bin_cmd!("lacuna")
         .args([

@@ -2,10 +2,13 @@
 //! a thin layer over the library. Exit codes: 0 all good, 1 the input has
 //! problems, 2 usage or I/O error.
 
+mod balance;
 mod check;
+mod dope;
 mod explain;
 mod fit;
 mod fmt;
+mod native;
 mod repl;
 mod typeset;
 
@@ -40,6 +43,15 @@ pub enum Command {
     Repl(repl::ReplArgs),
     /// Write reactions and species for manuscripts (LaTeX, Unicode, HTML, ...).
     Typeset(typeset::TypesetArgs),
+    /// Find the coefficients of a reaction from its species (exact; unique,
+    /// several or none, each explained).
+    Balance(balance::BalanceArgs),
+    /// List a host's intrinsic defect reactions (Schottky, Frenkel,
+    /// electronic, redox, antisite), balanced.
+    Native(native::NativeArgs),
+    /// Propose every balanced way a dopant can enter a host, ranked by size
+    /// and charge match; convert dopant levels between units.
+    Dope(dope::DopeArgs),
 }
 
 /// Output format of `check`.
@@ -87,6 +99,9 @@ pub fn main() -> ExitCode {
         Some(Command::Fmt(args)) => fmt::run(&args),
         Some(Command::Explain(args)) => explain::run(&args),
         Some(Command::Fit(args)) => fit::run(&args),
+        Some(Command::Balance(args)) => balance::run(&args),
+        Some(Command::Native(args)) => native::run(&args),
+        Some(Command::Dope(args)) => dope::run(&args),
         Some(Command::Repl(args)) => repl::run(&args),
         Some(Command::Typeset(args)) => typeset::run(&args),
         // No command: the workbench on a terminal, else help and a usage error.

@@ -51,9 +51,9 @@ fn write_count(out: &mut String, n: Q, style: Style) {
         Style::Html | Style::Markdown => {
             let _ = write!(out, "<sub>{text}</sub>");
         }
-        // Subscript digits read back only as whole numbers (`O₂`, not `La₀.₉`).
-        Style::Unicode => out.push_str(&subscript_digits(&text)),
-        Style::Ascii => out.push_str(&text),
+        // Plain digits in Unicode too: `Nb2O5` is how formulas are typed and
+        // searched, and the marks are what the Unicode style is for.
+        Style::Unicode | Style::Ascii => out.push_str(&text),
     }
 }
 
@@ -369,14 +369,6 @@ pub fn render_formula(formula: &Formula, style: Style) -> String {
 }
 
 /// `2` -> `₂`.
-fn subscript_digits(text: &str) -> String {
-    text.chars()
-        .map(|c| match c.to_digit(10) {
-            Some(d) => char::from_u32('₀' as u32 + d).unwrap_or(c),
-            None => c,
-        })
-        .collect()
-}
 
 /// Escapes the characters HTML gives meaning to.
 pub fn escape_html(text: &str) -> String {

@@ -42,10 +42,8 @@ pub const SIGIL: char = '/';
 /// wrote. `None` when there is none.
 pub type BalanceHook = fn(&Reaction, Option<&Host>) -> Option<Reaction>;
 
-// integration point: the exact balancer (src/balance.rs) plugs in here, e.g.
-// `Some(crate::balance::balanced_form)`. While it is `None`, a reaction that
-// does not balance is reported without a balanced form on offer.
-const BALANCER: Option<BalanceHook> = None;
+/// The exact balancer offers the balanced form of a reaction that does not balance.
+const BALANCER: Option<BalanceHook> = Some(crate::balance::balanced_form);
 
 /// A host the session knows: its specification as written and the parsed host.
 #[derive(Debug, Clone, PartialEq)]
