@@ -368,8 +368,6 @@ pub fn render_formula(formula: &Formula, style: Style) -> String {
     out
 }
 
-/// `2` -> `₂`.
-
 /// Escapes the characters HTML gives meaning to.
 pub fn escape_html(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
