@@ -185,7 +185,9 @@ impl<'s> Checker<'s> {
             }
             Line::Reaction { label, reaction } => {
                 let (parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
-                let verdict = parsed.as_ref().map(|r| check_reaction(r, state.host.as_ref()));
+                let verdict = parsed
+                    .as_ref()
+                    .map(|r| check_reaction(r, state.host.as_ref()));
                 if let Some(v) = &verdict {
                     for d in &v.diagnostics {
                         if d.code == Code::NoHost {
