@@ -151,6 +151,8 @@ codes! {
         "The mass-action laws use concentrations as activities, which holds for dilute, non-interacting defects. Above about one defect per hundred sites, interactions, association and site exclusion matter and the numbers are not trustworthy.";
     NotConverged = "M714", Error, "not converged",
         "A point where the numerical solution did not reach a relative electroneutrality residual of 1e-12 is reported as such and never passed off as a result.";
+    NoLaw = "M715", Note, "no law written",
+        "`law` writes no mass-action law for a reaction that fails its balance or validity checks, because that law would be wrong. The problems are reported on the same line.";
 }
 
 impl fmt::Display for Code {

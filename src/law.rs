@@ -373,6 +373,22 @@ pub fn mass_action_law(reaction: &Reaction, label: Option<&str>) -> Result<Law, 
             _ => {}
         }
     }
+    let from_perfect_crystal = reaction
+        .left
+        .iter()
+        .all(|t| matches!(t.entity, Entity::Nil))
+        && reaction
+            .right
+            .iter()
+            .all(|t| factor_of(&t.entity).is_some_and(|f| f.kind.is_concentration()));
+    if from_perfect_crystal {
+        let defects = factors.iter().filter(|f| f.kind.is_concentration()).count();
+        assumptions.push(if defects == 1 {
+            "formation from the perfect crystal: the configurational entropy k ln[(N+n)!/(N! n!)] of n defects on N sites makes the equilibrium fraction n/(N+n) = exp(ΔS/k)·exp(−ΔH/kT) = K".to_string()
+        } else {
+            "formation from the perfect crystal: with configurational entropy and neutrality making the partners equal, each fraction is K^(1/2) for a pair (Schottky, Frenkel), so ΔH and ΔS enter halved".to_string()
+        });
+    }
     if !cancelled.is_empty() {
         assumptions.push(format!(
             "{} appear on both sides and cancel",

@@ -1022,7 +1022,10 @@ impl Model {
                 Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
                 None => Vec::new(),
             };
-            let thermo = match resolve_thermo(&data, temperature, r.line) {
+            // A K without `at` holds at the file's temperature, never at a
+            // temperature given on the command line for this run.
+            let file_temperature = doc.temperature.map(|(t, _)| t);
+            let thermo = match resolve_thermo(&data, file_temperature, r.line) {
                 Ok(t) => t,
                 Err((line, d)) => {
                     errors.push(locate(line, d));

@@ -2,7 +2,10 @@
 //! a thin layer over the library. Exit codes: 0 all good, 1 the input has
 //! problems, 2 usage or I/O error.
 
+mod brouwer;
 mod check;
+mod law;
+mod model_input;
 
 use crate::host::Host;
 use crate::render::Palette;
@@ -22,6 +25,12 @@ pub struct Cli {
 pub enum Command {
     /// Check that reactions balance in mass, charge and sites.
     Check(check::CheckArgs),
+    /// Write the mass-action law of each reaction, with K(T) and its units.
+    Law(law::LawArgs),
+    /// Solve a defect model: exact Brouwer regimes and slopes, the full
+    /// numerical equilibrium over pO2 or temperature, frozen-in defects;
+    /// as a table, CSV, JSON or an SVG diagram.
+    Brouwer(brouwer::BrouwerArgs),
 }
 
 /// Output format of `check`.
@@ -66,6 +75,8 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Law(args) => law::run(&args),
+        Command::Brouwer(args) => brouwer::run(&args),
     }
 }
 
