@@ -983,7 +983,8 @@ impl Model {
             [] => {
                 errors.push(
                     Diagnostic::new(Code::NoHost, 0..0, "the model has no host")
-                        .with_help("add a `host ZrO2` line at the top, or pass --host"),
+                        .with_help("add a `host ZrO2` line at the top, or pass --host")
+                        .locate(1, doc.line_text(1)),
                 );
                 return Err(errors);
             }
@@ -1265,7 +1266,8 @@ impl Model {
                 0..0,
                 "the file has no equilibrium with data and no fixed total, so there is nothing to solve",
             )
-            .with_help("label a reaction and give its data, e.g. `red: O_O -> V_O.. + 2e' + 1/2 O2(g)` and `K red = 1e-20 at 1273 K`")]);
+            .with_help("label a reaction and give its data, e.g. `red: O_O -> V_O.. + 2e' + 1/2 O2(g)` and `K red = 1e-20 at 1273 K`")
+            .locate(1, doc.line_text(1))]);
         }
 
         let rows: Vec<Row> = equilibria.iter().map(|e| e.row.clone()).collect();
@@ -1376,6 +1378,7 @@ impl Model {
                 "the model gives no temperature",
             )
             .with_help("add a `temperature 1273 K` line, or pass --temperature")
+            .locate(1, self.line_text(1))
         })
     }
 
@@ -1443,6 +1446,26 @@ fn network_diagnostic(
         d.locate(line, text)
     };
     let label = |i: usize| equilibria.get(i).map_or("?", |e| e.label.as_str());
+    // The first line (an equilibrium or a `fix`) that mentions one of `which`.
+    let at_species = |which: &[usize], d: Diagnostic| {
+        let from_equilibria = equilibria
+            .iter()
+            .filter(|e| e.row.species.iter().any(|(s, _)| which.contains(s)))
+            .map(|e| e.line);
+        let from_totals = totals
+            .iter()
+            .filter(|t| {
+                which
+                    .iter()
+                    .any(|&s| t.weights.get(s).is_some_and(|w| *w > Q::from_integer(0)))
+            })
+            .map(|t| t.line);
+        let line = from_equilibria.chain(from_totals).min().unwrap_or(1);
+        let text = doc.line_text(line);
+        let mut d = d;
+        d.span = 0..text.len();
+        d.locate(line, text)
+    };
     match e {
         NetworkError::DependentEquilibria { index } => at_reaction(
             index,
@@ -1482,17 +1505,17 @@ fn network_diagnostic(
         ),
         NetworkError::OneSignedCharge { positive } => {
             let sign = if positive { "positive" } else { "negative" };
-            let names: Vec<&str> = species
-                .iter()
-                .filter(|s| s.charge != 0)
-                .map(|s| s.unicode.as_str())
-                .collect();
-            Diagnostic::new(
-                Code::Neutrality,
-                0..0,
-                format!("every charged species is {sign} ({}), so electroneutrality cannot hold", names.join(", ")),
+            let charged: Vec<usize> = (0..species.len()).filter(|&s| species[s].charge != 0).collect();
+            let names: Vec<&str> = charged.iter().map(|&s| species[s].unicode.as_str()).collect();
+            at_species(
+                &charged,
+                Diagnostic::new(
+                    Code::Neutrality,
+                    0..0,
+                    format!("every charged species is {sign} ({}), so electroneutrality cannot hold", names.join(", ")),
+                )
+                .with_help("add the compensating defects or carriers through an equilibrium, e.g. `i: nil -> e' + h.`"),
             )
-            .with_help("add the compensating defects or carriers through an equilibrium, e.g. `i: nil -> e' + h.`")
         }
         NetworkError::Underdetermined { species: free } => {
             let names: Vec<&str> = free
@@ -1500,12 +1523,18 @@ fn network_diagnostic(
                 .filter_map(|&s| species.get(s))
                 .map(|s| s.unicode.as_str())
                 .collect();
-            Diagnostic::new(
-                Code::Underdetermined,
-                0..0,
-                format!("the equilibria and totals do not determine {}", names.join(", ")),
+            at_species(
+                &free,
+                Diagnostic::new(
+                    Code::Underdetermined,
+                    0..0,
+                    format!(
+                        "the equilibria, electroneutrality and fixed totals leave a combination of {} free",
+                        names.join(", ")
+                    ),
+                )
+                .with_help("add an equilibrium with data that ties these to the others (for example the gap `nil -> e' + h.`), or a `fix` line for a dopant"),
             )
-            .with_help("add an equilibrium with data that ties these to the others, or a `fix` line for a dopant")
         }
         NetworkError::Overflow => Diagnostic::new(
             Code::Number,
