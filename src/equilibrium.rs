@@ -35,6 +35,16 @@ const MAX_ITERATIONS: usize = 200;
 /// Largest step of an outer search before a bracket is known (ln units).
 const MAX_STEP: f64 = 30.0;
 
+/// ln(e^a + e^b) without overflow.
+fn log_add(a: f64, b: f64) -> f64 {
+    let (hi, lo) = if a >= b { (a, b) } else { (b, a) };
+    if hi == f64::NEG_INFINITY {
+        hi
+    } else {
+        hi + (lo - hi).exp().ln_1p()
+    }
+}
+
 fn q_to_f64(q: Q) -> f64 {
     *q.numer() as f64 / *q.denom() as f64
 }
@@ -104,6 +114,29 @@ impl System {
         }
     }
 
+    /// The same system with the charge level's weights replaced by `row`
+    /// (a combination of the charge and the totals, so it spans the same
+    /// solutions). Without a charge level it is returned unchanged.
+    pub fn with_charge_row(&self, row: &[f64]) -> System {
+        let mut copy = self.clone();
+        if self.levels.first() == Some(&Level::Charge) && row.len() == self.species {
+            for (s, &z) in row.iter().enumerate() {
+                copy.w[s] = z;
+                copy.ln_w[s] = if z != 0.0 { z.abs().ln() } else { 0.0 };
+            }
+            let min_pos = row
+                .iter()
+                .filter(|z| **z > 0.0)
+                .fold(f64::INFINITY, |a, &b| a.min(b));
+            let min_neg = row
+                .iter()
+                .filter(|z| **z < 0.0)
+                .fold(f64::INFINITY, |a, &b| a.min(-b));
+            copy.charge_slope_bound = min_pos + min_neg;
+        }
+        copy
+    }
+
     fn weight(&self, level: usize, s: usize) -> f64 {
         self.w[level * self.species + s]
     }
@@ -147,17 +180,30 @@ impl System {
     }
 
     /// Residual h and slope dh/dy_level of `level`, with the levels inside it
-    /// already solved at the current point.
-    fn residual(&self, level: usize, ln_targets: &[f64], work: &mut Work) -> (f64, f64) {
+    /// already solved at the current point. For the charge level the target
+    /// is the net charge Q the weighted sum must reach (0 for
+    /// electroneutrality): h = ln(P + Q⁻) − ln(N + Q⁺).
+    fn residual(&self, level: usize, targets: &[f64], work: &mut Work) -> (f64, f64) {
         match self.levels[level] {
             Level::Charge => {
                 let (lp, dp) = self.log_sum(level, true, &work.e);
                 let (ln, dn) = self.log_sum(level, false, &work.e);
-                (lp - ln, dp + dn)
+                let q = targets.get(level).copied().unwrap_or(0.0);
+                if q == 0.0 {
+                    (lp - ln, dp + dn)
+                } else if q > 0.0 {
+                    // P = N + Q
+                    let shifted = log_add(ln, q.ln());
+                    (lp - shifted, dp + dn * (ln - shifted).exp())
+                } else {
+                    // P + |Q| = N
+                    let shifted = log_add(lp, (-q).ln());
+                    (shifted - ln, dp * (lp - shifted).exp() + dn)
+                }
             }
             Level::Total(_) => {
                 let (ls, _) = self.log_sum(level, true, &work.e);
-                let h = ls - ln_targets.get(level).copied().unwrap_or(0.0);
+                let h = ls - targets.get(level).copied().unwrap_or(0.0);
                 (h, self.reduced_slope(level, ls, work))
             }
         }
@@ -249,7 +295,12 @@ impl System {
             return false;
         }
         let (mut h, mut d) = self.residual(level, ln_targets, work);
-        let is_charge = self.levels[level] == Level::Charge;
+        // The slope bound brackets the root at once, but only for plain
+        // electroneutrality (no offset charge).
+        let is_charge = self.levels[level] == Level::Charge
+            && ln_targets.get(level).copied().unwrap_or(0.0) == 0.0
+            && self.charge_slope_bound.is_finite()
+            && self.charge_slope_bound > 0.0;
         let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
         let mut x = y[level];
         let mut last_abs = f64::INFINITY;
@@ -308,7 +359,9 @@ impl System {
     }
 
     /// Solves all constraints from the start value in `y`; on return `y`
-    /// holds the solution and `ln_c` the log concentrations.
+    /// holds the solution and `ln_c` the log concentrations. `ln_targets`
+    /// holds, per level, ln of the total for a fixed total and the net charge
+    /// itself (0 for electroneutrality) for the charge level.
     pub fn solve(
         &self,
         a: &[f64],
@@ -334,8 +387,16 @@ impl System {
                 Level::Charge => {
                     let (lp, _) = self.log_sum(l, true, &work.e);
                     let (ln, _) = self.log_sum(l, false, &work.e);
-                    // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
-                    charge_residual = (0.5 * (lp - ln)).tanh().abs();
+                    let q = ln_targets.get(l).copied().unwrap_or(0.0);
+                    charge_residual = if q == 0.0 {
+                        // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
+                        (0.5 * (lp - ln)).tanh().abs()
+                    } else {
+                        // |P − N − Q| / (P + N + |Q|), scaled to avoid overflow
+                        let top = lp.max(ln).max(q.abs().ln());
+                        let (p, n, q) = ((lp - top).exp(), (ln - top).exp(), q / top.exp());
+                        (p - n - q).abs() / (p + n + q.abs())
+                    };
                 }
                 Level::Total(_) => {
                     let (ls, _) = self.log_sum(l, true, &work.e);
@@ -536,12 +597,49 @@ pub fn temperature_sweep(
 
 /// The model with ionic defects frozen: only electronic equilibria run, and
 /// every ionic quantity they conserve is held at its equilibrated value.
+///
+/// The charge balance is posed without the bulk of the frozen ionic charge:
+/// each frozen family's total times the charge of its main member is a
+/// constant, so it is taken out, and what remains (electrons, holes, the
+/// charge-state changes of defects) must keep the net charge it had at
+/// equilibrium. Written the plain way, minority carriers would come out of a
+/// difference of two large, nearly equal ionic sums and lose their accuracy.
 pub struct Frozen {
     pub network: Network,
     /// Indices (into the model's equilibria) of the electronic equilibria.
     pub electronic: Vec<usize>,
     /// Weights of each frozen quantity over the model's species.
     pub frozen: Vec<Vec<Q>>,
+    /// Effective charges of the model's species.
+    pub charges: Vec<f64>,
+}
+
+impl Frozen {
+    /// The charge row with each family's main charge taken out, given the
+    /// equilibrated log concentrations, and the net charge it must keep.
+    fn charge_balance(&self, ln_c: &[f64]) -> (Vec<f64>, f64) {
+        let mut row = self.charges.clone();
+        for family in &self.frozen {
+            let main = family
+                .iter()
+                .enumerate()
+                .filter(|(_, w)| **w > Q::from_integer(0))
+                .max_by(|a, b| {
+                    let la = ln_c[a.0] + q_to_f64(*a.1).ln();
+                    let lb = ln_c[b.0] + q_to_f64(*b.1).ln();
+                    la.total_cmp(&lb)
+                })
+                .map(|(s, _)| s);
+            if let Some(main) = main {
+                let z = self.charges[main];
+                for (slot, w) in row.iter_mut().zip(family) {
+                    *slot -= z * q_to_f64(*w);
+                }
+            }
+        }
+        let net = row.iter().zip(ln_c).map(|(z, l)| z * l.exp()).sum();
+        (row, net)
+    }
 }
 
 /// Builds the frozen-in network of a model.
@@ -600,11 +698,32 @@ pub fn frozen_network(model: &Model) -> Result<Frozen, Diagnostic> {
     let mut rest = candidates.into_iter();
     loop {
         match network::build(species, 0, &rows, &charges, &chosen) {
-            Ok(net) => {
+            Ok(_) => {
+                // The charge level keeps what the uniform-charge families do
+                // not fix; each point refines the row further (charge_balance).
+                let mut charge: Vec<Q> =
+                    charges.iter().map(|&z| Q::from_integer(z.into())).collect();
+                for family in &chosen {
+                    let members: Vec<usize> = (0..species)
+                        .filter(|&s| family[s] > Q::from_integer(0))
+                        .collect();
+                    let Some(&first) = members.first() else {
+                        continue;
+                    };
+                    let z = charges[first];
+                    if members.iter().all(|&s| charges[s] == z) {
+                        for &s in &members {
+                            charge[s] -= Q::from_integer(z.into()) * family[s];
+                        }
+                    }
+                }
+                let net = network::build_general(species, 0, &rows, &charge, &chosen, false)
+                    .map_err(|_| frozen_error())?;
                 return Ok(Frozen {
                     network: net,
                     electronic,
                     frozen: chosen,
+                    charges: charges.iter().map(|&z| f64::from(z)).collect(),
                 });
             }
             Err(network::NetworkError::Underdetermined { .. }) => {}
@@ -618,12 +737,16 @@ pub fn frozen_network(model: &Model) -> Result<Frozen, Diagnostic> {
             None => break,
         }
     }
-    Err(Diagnostic::new(
+    Err(frozen_error())
+}
+
+fn frozen_error() -> Diagnostic {
+    Diagnostic::new(
         Code::Underdetermined,
         0..0,
         "cannot tell which quantities stay fixed when the ionic defects are frozen",
     )
-    .with_help("check that every ionic defect's charge states are linked by electronic equilibria"))
+    .with_help("check that every ionic defect's charge states are linked by electronic equilibria")
 }
 
 /// Frozen-in states: equilibrate at `t_high` and each pO2, freeze the ionic
@@ -637,7 +760,8 @@ pub fn frozen_sweep(
 ) -> Result<Vec<Point>, Diagnostic> {
     let high = po2_sweep(model, t_high, po2s)?;
     let frozen = frozen_network(model)?;
-    let system = System::new(&frozen.network);
+    let plain = System::new(&frozen.network);
+    let system = &plain;
     let mut points = Vec::with_capacity(po2s.len() * t_lows.len());
     let mut work = Work::default();
     let mut ln_c = Vec::new();
@@ -690,12 +814,15 @@ pub fn frozen_sweep(
             }
             continue;
         }
+        let (row, net_charge) = frozen.charge_balance(&hp.ln_c);
+        let system = plain.with_charge_row(&row);
         // Targets: the frozen quantities at the high-temperature state.
         let targets: Vec<f64> = system
             .levels
             .iter()
             .map(|l| match l {
-                Level::Charge => 0.0,
+                // The net charge of what stays in the balance, as it was.
+                Level::Charge => net_charge,
                 Level::Total(j) => {
                     let weights = &frozen.frozen[*j];
                     let max = weights

@@ -103,6 +103,21 @@ pub fn build(
     charges: &[i32],
     totals: &[Vec<Q>],
 ) -> Result<Network, NetworkError> {
+    let charge_like: Vec<Q> = charges.iter().map(|&z| Q::from_integer(z.into())).collect();
+    build_general(species, gases, rows, &charge_like, totals, true)
+}
+
+/// As `build`, with a charge-like first constraint given as exact weights.
+/// With `both_signs` false it may have one sign only (its target is then
+/// not zero): the frozen-in solver balances only the electronic charge.
+pub fn build_general(
+    species: usize,
+    gases: usize,
+    rows: &[Row],
+    charges: &[Q],
+    totals: &[Vec<Q>],
+    both_signs: bool,
+) -> Result<Network, NetworkError> {
     let equilibria = rows.len();
     let zero = R::zero();
     let nu: Matrix = rows
@@ -125,12 +140,13 @@ pub fn build(
             return Err(NetworkError::DependentEquilibria { index });
         }
     }
-    let charge_vector: Vec<R> = charges.iter().map(|&z| R::from_integer(z.into())).collect();
-    let charged = charges.iter().any(|&z| z != 0);
+    let zero_q = Q::from_integer(0);
+    let charge_vector: Vec<R> = charges.iter().map(|&z| linalg::from_q(z)).collect();
+    let charged = charges.iter().any(|&z| z != zero_q);
     if charged {
-        let positive = charges.iter().any(|&z| z > 0);
-        let negative = charges.iter().any(|&z| z < 0);
-        if !(positive && negative) {
+        let positive = charges.iter().any(|&z| z > zero_q);
+        let negative = charges.iter().any(|&z| z < zero_q);
+        if both_signs && !(positive && negative) {
             return Err(NetworkError::OneSignedCharge { positive });
         }
         for (equilibrium, row) in nu.iter().enumerate() {
