@@ -5,8 +5,8 @@
 //! fixed total), the mass-action laws become a square log-linear system,
 //! solved here in exact rational arithmetic. Out: for each such regime,
 //! every species as a power law `c = Π base^e · Π K_r^e · Π p_g^e · Π T_j^e`
-//! with exact exponents, so the slope d log[X]/d log pO2 and the dopant
-//! slope d log[X]/d log[total] are rationals such as −1/6 or +1/4. With the
+//! with exact exponents, so the slope `d log[X]/d log pO2` and the dopant
+//! slope `d log[X]/d log[total]` are rationals such as −1/6 or +1/4. With the
 //! model's K values, each regime's self-consistent range (where its
 //! dominant terms really are the largest) is an interval of log pO2 (or of
 //! 1/T); the regimes that occur are those intervals, in order.
@@ -34,13 +34,13 @@ pub struct Dominance {
 /// Every species as an exact power law inside one regime.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PowerLaws {
-    /// k[s][r] = d ln c_s / d ln K_r
+    /// `k[s][r]` = d ln c_s / d ln K_r
     pub k: Vec<Vec<Q>>,
-    /// gas[s][g] = d ln c_s / d ln p_g
+    /// `gas[s][g]` = d ln c_s / d ln p_g
     pub gas: Vec<Vec<Q>>,
-    /// total[s][j] = d ln c_s / d ln (total j)
+    /// `total[s][j]` = d ln c_s / d ln (total j)
     pub total: Vec<Vec<Q>>,
-    /// constant[s]: (base, exponent) pairs of the numeric prefactor.
+    /// `constant[s]`: (base, exponent) pairs of the numeric prefactor.
     pub constant: Vec<Vec<(Q, Q)>>,
 }
 
@@ -495,7 +495,7 @@ pub fn dominance_at(model: &Model, ln_c: &[f64]) -> Dominance {
 }
 
 impl Regime {
-    /// d log[X]/d log pO2 of species `s`.
+    /// `d log[X]/d log pO2` of species `s`.
     pub fn slope(&self, model: &Model, s: usize) -> Q {
         model
             .oxygen()

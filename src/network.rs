@@ -47,12 +47,12 @@ pub struct Network {
     pub gases: usize,
     /// The constraint levels, charge first when present.
     pub levels: Vec<Level>,
-    /// weights[l][s]: the coefficient of species s in constraint l (its charge
+    /// `weights[l][s]`: the coefficient of species s in constraint l (its charge
     /// or its count in a total), which is also the exponent of y_l in ln c_s.
     pub weights: Vec<Vec<Q>>,
-    /// k[s][r] = ∂ln c_s/∂ln K_r at fixed y.
+    /// `k[s][r]` = ∂ln c_s/∂ln K_r at fixed y.
     pub k: Vec<Vec<Q>>,
-    /// q[s][g] = ∂ln c_s/∂ln p_g at fixed y.
+    /// `q[s][g]` = ∂ln c_s/∂ln p_g at fixed y.
     pub q: Vec<Vec<Q>>,
 }
 
