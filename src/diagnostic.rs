@@ -30,7 +30,7 @@ impl Severity {
 macro_rules! codes {
     ($($variant:ident = $code:literal, $severity:ident, $title:literal, $why:literal;)*) => {
         /// Stable diagnostic codes. The letter names the stage (P parse, H host,
-        /// B balance, V validity, L lint); the digits never change meaning.
+        /// B balance, V validity, L lint, M model); the digits never change meaning.
         #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
         pub enum Code { $($variant),* }
 
@@ -179,6 +179,36 @@ codes! {
         "A coordination override is written `SITE=N`, e.g. `--cn Zr=8` or `--cn Fe:A=4`, with a site of the host and N between 1 and 16.";
     WrittenTwice = "K610", Error, "species written twice",
         "The balancer gives each species one coefficient, so a species written twice (on one side or on both) leaves a meaningless freedom: X → X. Write it once; its coefficient is found.";
+    ModelSyntax = "M701", Error, "model line",
+        "Model lines read `K label = 1e-20 at 1273 K`, `dH label = 4.5 eV`, `dS label = 1.2e-3 eV/K`, `fix Y_Zr' = 8 mol% Y2O3`, `temperature 1000 °C`, `po2 1e-30 to 1e5 bar`, `pressure H2O = 0.03 bar`. See grammar/model.md.";
+    UnknownLabel = "M702", Error, "unknown reaction label",
+        "Thermodynamic data name the reaction they belong to by its label: write the reaction as `red: O_O -> V_O.. + 2e' + 1/2 O2(g)` and its data as `K red = ...`.";
+    ModelDuplicate = "M703", Error, "given twice",
+        "A model has one host, one temperature, one pO2 range, one label per reaction and at most one K, dH and dS per reaction. Remove or rename the repeated line.";
+    ThermoData = "M704", Error, "thermodynamic data",
+        "An equilibrium constant is known from K alone (at one temperature), from dH and dS (at every temperature), or from K at a temperature together with dH (ΔS then follows). Other combinations are incomplete or contradict each other.";
+    ModelUnit = "M705", Error, "unit",
+        "Every quantity in a model carries its unit: temperatures in K or °C, enthalpies in eV or kJ/mol, entropies in k, eV/K or J/(mol K), pressures in bar, atm or Pa. Lacuna never guesses a unit.";
+    ModelTemperature = "M706", Error, "temperature",
+        "K given without `at` holds at the model's `temperature`, and a K known at one temperature cannot be used at another. Give the temperature, or dH so K can be extrapolated.";
+    FixedTotal = "M707", Error, "fixed total",
+        "`fix` holds the total amount of one species on one site (a dopant level) constant, counting every charge state and associate. The equilibria must not create or destroy it, and the amount must be a positive fraction.";
+    Underdetermined = "M708", Error, "concentration not determined",
+        "Each concentration must follow from the equilibria, electroneutrality and the fixed totals. A species that no equilibrium with data ties to the others needs an equilibrium (K, or dH and dS) or a `fix` line.";
+    DependentEquilibria = "M709", Error, "dependent equilibria",
+        "An equilibrium that is a combination of others has a K fixed by theirs; giving it its own K would contradict them or add nothing. Keep the data for independent reactions only.";
+    Neutrality = "M710", Error, "electroneutrality",
+        "Electroneutrality needs charged species of both signs (or none at all). A model whose charged species all have one sign cannot be neutral: add the compensating defect or carrier.";
+    GasPressure = "M711", Error, "gas pressure",
+        "The pO2 is swept; every other gas in an equilibrium needs a fixed partial pressure, e.g. `pressure H2O = 0.03 bar`.";
+    NoThermoData = "M712", Note, "reaction without data",
+        "A reaction without K or dH/dS is shown for reference but takes no part in the equilibrium.";
+    DiluteLimit = "M713", Warning, "dilute limit",
+        "The mass-action laws use concentrations as activities, which holds for dilute, non-interacting defects. Above about one defect per hundred sites, interactions, association and site exclusion matter and the numbers are not trustworthy.";
+    NotConverged = "M714", Error, "not converged",
+        "A point where the numerical solution did not reach a relative electroneutrality residual of 1e-12 is reported as such and never passed off as a result.";
+    NoLaw = "M715", Note, "no law written",
+        "`law` writes no mass-action law for a reaction that fails its balance or validity checks, because that law would be wrong. The problems are reported on the same line.";
 }
 
 impl fmt::Display for Code {

@@ -12,16 +12,11 @@ pub const EXTENSION: &str = "kvr";
 
 /// Keywords that start a model line (see the model grammar); any other line
 /// that is not a comment, blank or `host` line is a reaction.
-pub const MODEL_KEYWORDS: &[&str] = &[
-    "K",
-    "dH",
-    "dS",
-    "fix",
-    "temperature",
-    "po2",
-    "neutral",
-    "species",
-];
+pub const MODEL_KEYWORDS: &[&str] = &["K", "dH", "dS", "fix", "temperature", "po2", "pressure"];
+
+/// Reaction arrows other than `=`: a line holding one is a reaction even if it
+/// starts with a keyword (`K -> K_i. + e'` is about potassium).
+const ARROWS: &[&str] = &["->", "→", "<=>", "⇌"];
 
 /// What one line of a reaction file holds.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -63,7 +58,10 @@ pub fn classify(line: &str) -> Line {
     if first_word == "host" {
         return Line::Host(start + first_word_len..end);
     }
-    if MODEL_KEYWORDS.contains(&first_word) && first_word_len < trimmed.trim_end().len() {
+    if MODEL_KEYWORDS.contains(&first_word)
+        && first_word_len < trimmed.trim_end().len()
+        && !ARROWS.iter().any(|a| trimmed.contains(a))
+    {
         return Line::Model {
             keyword: start..start + first_word_len,
             rest: start + first_word_len..end,
@@ -127,6 +125,13 @@ mod tests {
             Line::Reaction {
                 label: Some(0..3),
                 reaction: 5..17
+            }
+        );
+        assert_eq!(
+            classify("K -> K_i. + e'"),
+            Line::Reaction {
+                label: None,
+                reaction: 0..14
             }
         );
         assert_eq!(

@@ -2,13 +2,17 @@
 //! binary or the public library against the project's documents.
 
 mod balance;
+mod brouwer;
 mod check_cli;
 mod docs;
 mod dope;
+mod equilibrium_properties;
 mod fit;
 mod generated_reactions;
 mod hostile;
+mod laws;
 mod lint_cli;
+mod model_grammar;
 mod native;
 mod properties;
 mod repl;

@@ -3,11 +3,14 @@
 //! problems, 2 usage or I/O error.
 
 mod balance;
+mod brouwer;
 mod check;
 mod dope;
 mod explain;
 mod fit;
 mod fmt;
+mod law;
+mod model_input;
 mod native;
 mod repl;
 mod typeset;
@@ -52,6 +55,12 @@ pub enum Command {
     /// Propose every balanced way a dopant can enter a host, ranked by size
     /// and charge match; convert dopant levels between units.
     Dope(dope::DopeArgs),
+    /// Write the mass-action law of each reaction, with K(T) and its units.
+    Law(law::LawArgs),
+    /// Solve a defect model: exact Brouwer regimes and slopes, the full
+    /// numerical equilibrium over pO2 or temperature, frozen-in defects;
+    /// as a table, CSV, JSON or an SVG diagram.
+    Brouwer(brouwer::BrouwerArgs),
 }
 
 /// Output format of `check`.
@@ -102,6 +111,8 @@ pub fn main() -> ExitCode {
         Some(Command::Balance(args)) => balance::run(&args),
         Some(Command::Native(args)) => native::run(&args),
         Some(Command::Dope(args)) => dope::run(&args),
+        Some(Command::Law(args)) => law::run(&args),
+        Some(Command::Brouwer(args)) => brouwer::run(&args),
         Some(Command::Repl(args)) => repl::run(&args),
         Some(Command::Typeset(args)) => typeset::run(&args),
         // No command: the workbench on a terminal, else help and a usage error.

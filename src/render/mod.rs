@@ -3,10 +3,12 @@
 //! Colour is decided once, by the caller, and passed in as a `Palette`; the
 //! checker never sees it.
 
+pub mod csv;
 pub mod gnu;
 pub mod human;
 pub mod json;
 pub mod sarif;
+pub mod svg;
 
 use crate::diagnostic::Severity;
 use colored::{Color, Colorize};
