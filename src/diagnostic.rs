@@ -130,9 +130,9 @@ codes! {
     DuplicateLabel = "L503", Error, "duplicate name",
         "Reaction names identify reactions in models and reports, so each name is used once per file.";
     UnknownReaction = "L504", Error, "unknown reaction",
-        "A model line refers to a reaction by name, and no reaction above it in the file has that name.";
+        "A model line (`K`, `dH`, `dS`) refers to a reaction by name, and no reaction in the file has that name.";
     FractionalCoefficients = "L505", Warning, "fractional coefficients",
-        "Fractional coefficients (`1/2 O2(g)`) are fine, but a file that otherwise writes whole numbers reads more easily when all its reactions do. Multiply through, or keep fractions throughout.";
+        "Fractional coefficients on gases (`1/2 O2(g)`) are the field's convention and pass. On defects and condensed compounds (`1/2 Y2O3 -> Y_Zr' + …`) they are legal, but a file that otherwise writes whole numbers reads more easily when all its reactions do. Multiply through, or keep fractions throughout.";
     ImplicitNeutral = "L506", Warning, "implicit neutral mark",
         "A vacancy or interstitial written without any mark reads as neutral (`V_O` is `V_O×`). On a charged site the ionised form is more usual, so an unmarked defect is often a forgotten mark; write `×` when the neutral defect is meant.";
     CsvFormat = "F901", Error, "measurement file format",

@@ -160,6 +160,16 @@ impl<'s> Checker<'s> {
                 }
             }
         }
+        // Model lines may name reactions written further down, so names are
+        // resolved once the whole source is read.
+        for (line_text, diagnostic) in state.lints.unresolved_references() {
+            let mut diagnostics = vec![diagnostic];
+            self.levels.apply(&mut diagnostics, &line_text);
+            for d in diagnostics {
+                self.summary.count(std::slice::from_ref(&d));
+                self.sink.line_problem(name, &line_text, &d)?;
+            }
+        }
         Ok(())
     }
 
@@ -199,10 +209,21 @@ impl<'s> Checker<'s> {
                 }
                 Ok(())
             }
-            Line::Model { keyword, .. } => {
-                // Model lines are read by the equilibrium commands; `check` only
-                // needs to know they are not reactions.
-                let _ = keyword;
+            Line::Model { keyword, rest } => {
+                // Model lines are read by the equilibrium commands; `check`
+                // only notes the reactions they name (rule L504).
+                if matches!(&text[keyword], "K" | "dH" | "dS") {
+                    let after = &text[rest.clone()];
+                    let lead = after.len() - after.trim_start().len();
+                    let name_len = after
+                        .trim_start()
+                        .find(|c: char| c.is_whitespace() || c == '=')
+                        .unwrap_or(after.trim_start().len());
+                    let start = rest.start + lead;
+                    if name_len > 0 {
+                        state.lints.reference(number, text, start..start + name_len);
+                    }
+                }
                 Ok(())
             }
             Line::Reaction { label, reaction } => {

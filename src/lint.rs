@@ -165,6 +165,8 @@ pub struct FileLints {
     seen: HashMap<u64, u32, KeyIsHash>,
     /// Names seen so far, by hash (bounded memory on huge files).
     labels: HashMap<u64, u32, KeyIsHash>,
+    /// Names used by model lines: (line, line text, span of the name).
+    references: Vec<(u32, String, std::ops::Range<usize>)>,
     integer_reactions: u32,
     fractional_reactions: u32,
     repeat_limit_noted: bool,
@@ -203,6 +205,39 @@ impl FileLints {
             implicit_neutral(reaction, host, &mut out);
         }
         out
+    }
+
+    /// Notes a model line's use of a reaction name, resolved at the end.
+    pub fn reference(&mut self, line: u32, line_text: &str, name: std::ops::Range<usize>) {
+        self.references.push((line, line_text.to_string(), name));
+    }
+
+    /// Model lines that name no reaction of the file, as located diagnostics
+    /// with their line's text.
+    pub fn unresolved_references(&mut self) -> Vec<(String, Diagnostic)> {
+        let references = std::mem::take(&mut self.references);
+        references
+            .into_iter()
+            .filter_map(|(line, text, span)| {
+                let name = text.get(span.clone())?.to_string();
+                if self.knows_label(&name) {
+                    return None;
+                }
+                let d = Diagnostic::new(
+                    Code::UnknownReaction,
+                    span,
+                    format!(
+                        "no reaction in this file is named `{}`",
+                        crate::notation::quoted(&name)
+                    ),
+                )
+                .with_help(
+                    "name the reaction with `name: reaction`, or fix the spelling of the name here",
+                )
+                .locate(line, &text);
+                Some((text, d))
+            })
+            .collect()
     }
 
     /// The names declared so far, for rules that check references.
@@ -284,13 +319,17 @@ impl FileLints {
     }
 
     fn fractions(&mut self, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        let fractional = reaction.terms().find(|(_, t)| !t.coefficient.is_integer());
+        // Gases are conventionally fractional (`1/2 O2(g)`), so only the
+        // condensed species count.
+        let fractional = reaction.terms().find(|(_, t)| {
+            !t.coefficient.is_integer() && !matches!(&t.entity, Entity::Compound(c) if c.phase == Some(crate::notation::Phase::Gas))
+        });
         match fractional {
             None => self.integer_reactions += 1,
             Some((_, term)) => {
                 if self.integer_reactions > self.fractional_reactions {
                     out.push(
-                        Diagnostic::new(Code::FractionalCoefficients, term.span.clone(), "a fractional coefficient in a file that otherwise uses whole numbers")
+                        Diagnostic::new(Code::FractionalCoefficients, term.span.clone(), "a fractional coefficient on a condensed species in a file that otherwise uses whole numbers")
                             .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
                     );
                 }
@@ -550,9 +589,11 @@ mod tests {
                 "nil -> e' + h.",
                 "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
                 "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+                "1/2 CaO -> 1/2 Ca_Zr'' + 1/2 O_O + 1/2 V_O..",
             ],
         );
-        assert_eq!(found, vec![(3, "L505")]);
+        // A half O2(g) is the convention; half a formula unit of Y2O3 is not.
+        assert_eq!(found, vec![(4, "L505")]);
     }
 
     #[test]

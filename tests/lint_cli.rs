@@ -224,3 +224,20 @@ fn a_killed_writer_never_leaves_a_mix() {
         );
     }
 }
+
+#[test]
+fn model_lines_must_name_a_reaction_of_the_file() {
+    // Data may come before the reaction it belongs to; only unknown names fail.
+    let text = b"host ZrO2\nK red = 1e-20 at 1273 K\ndH rde = 4.6 eV\nred: O_O -> V_O.. + 2e' + 1/2 O2(g)\n";
+    let run = expect(&["check", "--format", "gnu", "-"], Some(text), 1);
+    assert_eq!(
+        run.stdout.trim(),
+        "<stdin>:3:4: error: no reaction in this file is named `rde` [L504] (help: name the reaction with `name: reaction`, or fix the spelling of the name here)"
+    );
+    let run = expect(
+        &["check", "--allow", "unknown-reaction", "-"],
+        Some(text),
+        0,
+    );
+    assert!(run.stdout.contains("1 pass"), "{}", run.stdout);
+}
