@@ -112,7 +112,8 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
         checker.mass_diagnostic(reaction, &table);
     }
     if !charge {
-        checker.charge_diagnostic(reaction, &table);
+        // A single wrong mark is the likely slip only when the rest balances.
+        checker.charge_diagnostic(reaction, &table, mass && site != Some(false));
     }
     if site == Some(false) {
         checker.site_diagnostic(reaction, &table);
@@ -592,7 +593,12 @@ impl Checker<'_> {
         );
     }
 
-    fn charge_diagnostic(&mut self, reaction: &Reaction, table: &BalanceTable) {
+    fn charge_diagnostic(
+        &mut self,
+        reaction: &Reaction,
+        table: &BalanceTable,
+        look_for_culprit: bool,
+    ) {
         let (left, right) = table.charge;
         let message = format!(
             "charge does not balance: left {}, right {}",
@@ -602,7 +608,10 @@ impl Checker<'_> {
         let mut diagnostic = Diagnostic::new(Code::ChargeBalance, reaction.span.clone(), message);
         // Point at one species whose charge mark, corrected, would balance the
         // reaction with a plausible charge: usually the typo.
-        if let Some((span, fixed, note)) = self.charge_culprit(reaction, right - left) {
+        if let Some((span, fixed, note)) = look_for_culprit
+            .then(|| self.charge_culprit(reaction, right - left))
+            .flatten()
+        {
             diagnostic.span = span;
             diagnostic.label = Some(note);
             diagnostic.help = Some(format!("with {fixed} the charges balance"));
