@@ -472,7 +472,14 @@ fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
     }
     net.retain(|(_, q)| *q != Q::from_integer(0));
     net.sort_unstable_by_key(|(k, _)| *k);
-    let scale = net.first()?.1;
+    let first = net.first()?.1;
+    // Scale by the size of the first coefficient, keeping signs: a reversed
+    // reaction then hashes as the negation of the original.
+    let scale = if first < Q::from_integer(0) {
+        -first
+    } else {
+        first
+    };
     // Dividing by the first coefficient fixes the scale; its sign says which
     // way round the reaction is written.
     let hash = |sign: i64| {
@@ -579,6 +586,33 @@ mod tests {
             ],
         );
         assert_eq!(found, vec![(2, "L502"), (3, "L502")]);
+    }
+
+    #[test]
+    fn reverses_are_told_from_multiples() {
+        let host = Host::from_spec("ZrO2").expect("host");
+        let mut lints = FileLints::default();
+        let mut messages = Vec::new();
+        for (i, text) in [
+            "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+            "2O_O -> 2V_O.. + 4e' + O2(g)",
+            "V_O.. + 2e' + 1/2 O2(g) -> O_O",
+        ]
+        .iter()
+        .enumerate()
+        {
+            let (reaction, _) = parse_reaction(text, 0..text.len());
+            for d in lints.reaction(i as u32 + 1, None, &reaction.expect("parses"), Some(&host)) {
+                messages.push(d.message);
+            }
+        }
+        assert_eq!(
+            messages,
+            vec![
+                "this reaction is a multiple of the one on line 1",
+                "this reaction is the reverse of the one on line 1"
+            ]
+        );
     }
 
     #[test]
