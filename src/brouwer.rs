@@ -308,13 +308,13 @@ fn affine(model: &Model, laws: &PowerLaws, sweep: Sweep) -> Option<Affine> {
             match (&ln_k, sweep) {
                 (Some(values), _) => a += x * values[r],
                 (None, _) => match e.thermo {
-                    Thermo::Arrhenius {
+                    Some(Thermo::Arrhenius {
                         dh_ev, ds_ev_per_k, ..
-                    } => {
+                    }) => {
                         a += x * ds_ev_per_k / BOLTZMANN_EV_PER_K;
                         b += x * -dh_ev / BOLTZMANN_EV_PER_K;
                     }
-                    Thermo::Fixed { .. } => return None,
+                    Some(Thermo::Fixed { .. }) | None => return None,
                 },
             }
         }
@@ -548,7 +548,7 @@ impl Regime {
         for (r, e) in model.equilibria.iter().enumerate() {
             let x = q_f64(self.laws.k[s][r]);
             if x != 0.0 {
-                sum += x * e.thermo.enthalpy()?;
+                sum += x * e.thermo?.enthalpy()?;
             }
         }
         Some(sum)
