@@ -144,7 +144,7 @@ pub fn model_regimes(model: &Model) -> Result<ModelRegimes, Diagnostic> {
         })
         .unwrap_or(mobile[0]);
 
-    let places = places(model, &all);
+    let (places, unordered) = places(model, &all);
     let mut order: Vec<usize> = (0..all.len()).collect();
     order.sort_by(|&a, &b| {
         let key = |i: usize| match places[i] {
@@ -239,15 +239,13 @@ pub fn model_regimes(model: &Model) -> Result<ModelRegimes, Diagnostic> {
             law: e.law.text(Style::Unicode),
         })
         .collect();
-    let ordering = match places.iter().find_map(|p| match p {
-        Place::Occurs(_, _, t) | Place::Absent(t) => Some(*t),
-        Place::Unknown => None,
-    }) {
-        Some(t) => format!(
+    let ordering = match (unordered, model.temperature) {
+        (None, Some(t)) => format!(
             "those occurring at {} first, in order of pO2",
             temperature_text(t)
         ),
-        None => "not ordered: the model gives no K at a temperature".to_string(),
+        (Some(why), _) => format!("not ordered: {why}"),
+        (None, None) => "not ordered".to_string(),
     };
     let picked: Vec<String> = picks.iter().map(|&s| unicode_name(model, s)).collect();
     Ok(ModelRegimes {
@@ -294,23 +292,33 @@ fn carrier_law(model: &Model, laws: &PowerLaws, s: usize, oxygen: usize) -> Carr
 }
 
 /// Where each regime holds at the model's temperature, when the model can say.
-fn places(model: &Model, all: &[(Dominance, PowerLaws)]) -> Vec<Place> {
-    let unknown = || all.iter().map(|_| Place::Unknown).collect();
+fn places(model: &Model, all: &[(Dominance, PowerLaws)]) -> (Vec<Place>, Option<String>) {
+    let unknown = |why: &str| {
+        (
+            all.iter().map(|_| Place::Unknown).collect(),
+            Some(why.to_string()),
+        )
+    };
+    if model.equilibria.iter().any(|e| e.thermo.is_none()) {
+        return unknown("the model has no K values");
+    }
     let Some(t) = model.temperature else {
-        return unknown();
+        return unknown("the model gives no temperature");
     };
     if model.ln_k(t).is_err() {
-        return unknown();
+        return unknown("K is not known at the model's temperature");
     }
     let Ok(found) = brouwer::regimes(model, Sweep::Po2 { temperature: t }, model.po2_range) else {
-        return unknown();
+        return unknown("its regimes could not be placed along pO2");
     };
-    all.iter()
+    let places = all
+        .iter()
         .map(|(d, _)| match found.iter().find(|r| r.dominance == *d) {
             Some(r) => Place::Occurs(r.from, r.to, t),
             None => Place::Absent(t),
         })
-        .collect()
+        .collect();
+    (places, None)
 }
 
 #[cfg(test)]
@@ -442,7 +450,13 @@ mod tests {
         let regimes = ModelRegimes::from_model(&m).expect("regimes from slopes alone");
         let names: Vec<&str> = regimes.regimes.iter().map(|r| r.name.as_str()).collect();
         assert_eq!(names, ["n=2V_O", "n=p"]);
-        assert!(regimes.source.contains("not ordered"), "{}", regimes.source);
+        assert!(
+            regimes
+                .source
+                .contains("not ordered: the model has no K values"),
+            "{}",
+            regimes.source
+        );
     }
 
     #[test]
