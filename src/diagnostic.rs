@@ -209,6 +209,8 @@ codes! {
         "A point where the numerical solution did not reach a relative electroneutrality residual of 1e-12 is reported as such and never passed off as a result.";
     NoLaw = "M715", Note, "no law written",
         "`law` writes no mass-action law for a reaction that fails its balance or validity checks, because that law would be wrong. The problems are reported on the same line.";
+    FitModel = "F906", Error, "model unfit for a fit",
+        "`fit --model` compares measured slopes with the exact regimes of a defect model. The model must exchange O2(g) and hold electrons, holes and a charged ionic defect that no `fix` line holds, since the fit splits the conductivity into an ionic, an n and a p term.";
 }
 
 impl fmt::Display for Code {

@@ -781,9 +781,9 @@ pub fn frozen_sweep(
                 let mut values = Vec::new();
                 for &i in &frozen.electronic {
                     let e = &model.equilibria[i];
-                    match e.thermo.ln_k(t) {
-                        Ok(v) => values.push(v),
-                        Err(_) => return Err(d),
+                    match e.thermo.map(|thermo| thermo.ln_k(t)) {
+                        Some(Ok(v)) => values.push(v),
+                        _ => return Err(d),
                     }
                 }
                 values

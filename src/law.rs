@@ -561,6 +561,67 @@ impl Law {
     }
 }
 
+/// One law as `lacuna law` prints it: the reaction with where it came from
+/// (`place`), the law, K(T) when there is data, the units of K and the
+/// assumptions; in LaTeX an `equation` with `%` comments. Shared by the
+/// `law` command and the workbench's `/law`.
+pub fn write_law_text(
+    out: &mut dyn std::io::Write,
+    law: &Law,
+    thermo: Option<&Thermo>,
+    at: Option<f64>,
+    host: Option<&str>,
+    place: &str,
+    style: Style,
+) -> std::io::Result<()> {
+    let name = law
+        .label
+        .as_deref()
+        .map_or_else(String::new, |l| format!("{l}: "));
+    let reaction = if style == Style::Ascii {
+        &law.reaction_ascii
+    } else {
+        &law.reaction_unicode
+    };
+    if style == Style::Latex {
+        writeln!(out, "% {name}{} ({place})", law.reaction_ascii)?;
+        writeln!(
+            out,
+            "\\begin{{equation}}\n  {}\n\\end{{equation}}",
+            law.text(Style::Latex)
+        )?;
+        if let Some(thermo) = thermo {
+            writeln!(out, "% {}", k_of_t_text(law, thermo, at, Style::Ascii))?;
+            if thermo.temperature_dependent() {
+                writeln!(
+                    out,
+                    "\\begin{{equation}}\n  {}(T) = \\exp(\\Delta S/k)\\,\\exp(-\\Delta H/kT)\n\\end{{equation}}",
+                    law.k_symbol(Style::Latex)
+                )?;
+            }
+        }
+        writeln!(out, "% units: {}", law.units_text(host))?;
+        for a in &law.assumptions {
+            writeln!(out, "% assumes: {a}")?;
+        }
+        return writeln!(out);
+    }
+    writeln!(out, "{name}{reaction}    ({place})")?;
+    writeln!(out, "  {}", law.text(style))?;
+    if let Some(thermo) = thermo {
+        writeln!(out, "  {}", k_of_t_text(law, thermo, at, style))?;
+    }
+    writeln!(out, "  units: {}", law.units_text(host))?;
+    for (i, a) in law.assumptions.iter().enumerate() {
+        writeln!(
+            out,
+            "  {} {a}",
+            if i == 0 { "assumes:" } else { "        " }
+        )?;
+    }
+    writeln!(out)
+}
+
 /// K(T) written out from the thermodynamic data, with its value at `at`
 /// (kelvin) when that is known.
 pub fn k_of_t_text(law: &Law, thermo: &Thermo, at: Option<f64>, style: Style) -> String {

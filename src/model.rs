@@ -543,7 +543,9 @@ pub struct ModelSpecies {
 pub struct Equilibrium {
     pub label: String,
     pub law: Law,
-    pub thermo: Thermo,
+    /// `None` only in a model built with `Overrides::slopes_only` from a
+    /// reaction without data: its K is unknown and never evaluated.
+    pub thermo: Option<Thermo>,
     pub row: Row,
     /// Only electrons and holes change: it still runs when ionic defects are frozen.
     pub electronic: bool,
@@ -604,6 +606,23 @@ pub struct Model {
 pub struct Overrides {
     pub temperature: Option<f64>,
     pub po2_range: Option<(f64, f64)>,
+    /// Reactions without data become equilibria whose K is unknown instead
+    /// of references: the model then gives the exact regime slopes (which
+    /// do not depend on K) but no ranges and no concentrations.
+    pub slopes_only: bool,
+}
+
+impl Overrides {
+    /// Settings for the exact regimes alone: when no reaction of `doc` has
+    /// data (no `K`, `dH` or `dS` line), every reaction becomes an
+    /// equilibrium with K unknown (`slopes_only`); otherwise the reactions
+    /// without data stay references, as `brouwer` reads the file.
+    pub fn for_slopes(doc: &Document) -> Overrides {
+        Overrides {
+            slopes_only: doc.data.is_empty(),
+            ..Overrides::default()
+        }
+    }
 }
 
 /// Identity of a species' occupant on its site, charge ignored (`Y_Zr`).
@@ -1037,9 +1056,12 @@ impl Model {
                 .label
                 .clone()
                 .unwrap_or_else(|| crate::notation::render_reaction(&r.reaction, Style::Unicode));
-            let Some((thermo, data_line)) = thermo else {
-                reference_only.push(name.clone());
-                notes.push(locate(
+            let (thermo, data_line) = match thermo {
+                Some((thermo, line)) => (Some(thermo), line),
+                None if overrides.slopes_only => (None, r.line),
+                None => {
+                    reference_only.push(name.clone());
+                    notes.push(locate(
                     r.line,
                     Diagnostic::new(
                         Code::NoThermoData,
@@ -1052,7 +1074,8 @@ impl Model {
                         "label it (`red: ...`) and add `K red = ...` to make it an equilibrium"
                     }),
                 ));
-                continue;
+                    continue;
+                }
             };
             if !r.ok {
                 // The balance diagnostics are already in `errors`.
@@ -1355,8 +1378,20 @@ impl Model {
         self.equilibria
             .iter()
             .map(|e| {
-                e.thermo.ln_k(t).map_err(|err| {
-                    let line = e.data_line;
+                let line = e.data_line;
+                let Some(thermo) = e.thermo else {
+                    return Err(Diagnostic::new(
+                        Code::NoThermoData,
+                        0..self.line_text(line).len(),
+                        format!("`{}` has no K or dH/dS, so no value of K is known", e.label),
+                    )
+                    .with_help(match &e.law.label {
+                        Some(l) => format!("add `K {l} = ...` (at a temperature) or `dH {l}`/`dS {l}` lines"),
+                        None => "label the reaction (`red: ...`) and add `K red = ...` or dH/dS lines".to_string(),
+                    })
+                    .locate(line, self.line_text(line)));
+                };
+                thermo.ln_k(t).map_err(|err| {
                     Diagnostic::new(
                         Code::ModelTemperature,
                         0..self.line_text(line).len(),

@@ -231,11 +231,19 @@ fn usage_and_io_problems_exit_2() {
         .args(["fit", DEMO, "--confidence", "1.5"])
         .assert()
         .code(2);
+    // A model file with two hosts and slips: every problem with its line, exit 1.
     lacuna()
         .args(["fit", DEMO, "--model", "examples/notebook.kvr"])
         .assert()
+        .code(1)
+        .stderr(predicate::str::contains("examples/notebook.kvr:19:1"))
+        .stderr(predicate::str::contains("a model has one host"))
+        .stderr(predicate::str::contains("nothing was fitted"));
+    lacuna()
+        .args(["fit", DEMO, "--model", "/no/such/model.kvr"])
+        .assert()
         .code(2)
-        .stderr(predicate::str::contains("does not read model files"));
+        .stderr(predicate::str::contains("cannot read /no/such/model.kvr"));
     lacuna()
         .args(["fit", DEMO, "--svg", "/no/such/dir/plot.svg"])
         .assert()
@@ -410,4 +418,101 @@ proptest::proptest! {
             lacuna::fit::report::write_table(&mut sink, &r, lacuna::render::Palette::PLAIN).unwrap();
         }
     }
+}
+
+#[test]
+fn a_model_file_replaces_the_textbook_regimes_by_name() {
+    // The demo model (invented numbers) is an acceptor-doped oxide with
+    // reduction and band gap; its regimes must carry the textbook slopes of
+    // that case. source: D. M. Smyth, The Defect Chemistry of Metal Oxides
+    // (Oxford UP 2000), acceptor-doped oxides (from memory): n −1/4 and
+    // p +1/4 where [A′] = 2[V_O••]; n = 2[V_O••] gives −1/6.
+    let model = "examples/electrolyte-notebook.kvr";
+    let assert = lacuna()
+        .args(["fit", DEMO, "--model", model])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains(format!("regimes: model {model}")))
+        .stdout(predicate::str::contains("ionic term V_O••"))
+        .stdout(predicate::str::contains(
+            "decomposition in regime Y_Zr=2V_O ([Y_Zr′] = 2[V_O••]",
+        ))
+        .stdout(predicate::str::contains(
+            "Y_Zr=2V_O  n  −1/4  p  +1/4  V_O••     0  [Y_Zr′] = 2[V_O••]",
+        ))
+        .stdout(predicate::str::contains(
+            "n=2V_O     n  −1/6  p  +1/6  V_O••  −1/6  n = 2[V_O••]",
+        ))
+        .stdout(predicate::str::contains("V_O•• in Y_Zr=2V_O"))
+        .stdout(predicate::str::contains("acceptor-fixed").not())
+        // The reference-only dissolution reaction is noted, not used.
+        .stderr(predicate::str::contains("`dope` has no K or dH/dS"));
+    drop(assert);
+    // The names work with --regime, and the JSON lists every regime.
+    let out = lacuna()
+        .args([
+            "fit", DEMO, "--model", model, "--regime", "n=2V_O", "--format", "json",
+        ])
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let v = json_of(&out);
+    assert_eq!(v["regime"]["name"], "n=2V_O");
+    assert_eq!(v["regime"]["exponents"]["n"], "-1/6");
+    let names: Vec<&str> = v["regimes"]
+        .as_array()
+        .expect("regimes listed")
+        .iter()
+        .filter_map(|r| r["name"].as_str())
+        .collect();
+    assert_eq!(names, ["n=2V_O", "Y_Zr=2V_O", "Y_Zr=p", "n=p"]);
+    assert!(
+        v["regimes_source"]
+            .as_str()
+            .is_some_and(|s| s.contains("electrolyte-notebook.kvr")),
+        "{}",
+        v["regimes_source"]
+    );
+    lacuna()
+        .args(["fit", DEMO, "--model", model, "--regime", "acceptor-fixed"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains(
+            "the regimes are: n=2V_O, Y_Zr=2V_O",
+        ));
+}
+
+#[test]
+fn a_model_without_what_the_fit_needs_is_refused_with_its_place() {
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    let path = dir.path().join("reduction-only.kvr");
+    // Reduction alone: electrons and vacancies but no holes.
+    std::fs::write(
+        &path,
+        "host CeO2\nred: O_O -> V_O.. + 2e' + 1/2 O2(g)\nK red = 1e-20 at 1273 K\n",
+    )
+    .expect("the model is written");
+    let shown = path.display().to_string();
+    lacuna()
+        .args(["fit", DEMO, "--model", &shown])
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains(
+            "error[F906]: the model has no holes",
+        ))
+        .stderr(predicate::str::contains(format!("{shown}:1:1")))
+        .stderr(predicate::str::contains("gap: nil -> e' + h."));
+    // A model line with a unit error: its line and column.
+    std::fs::write(
+        &path,
+        "host CeO2\nred: O_O -> V_O.. + 2e' + 1/2 O2(g)\nK red = 1e-20 at 1273 furlongs\n",
+    )
+    .expect("the model is written");
+    lacuna()
+        .args(["fit", DEMO, "--model", &shown])
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains(format!("{shown}:3:")));
 }

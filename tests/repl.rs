@@ -134,20 +134,268 @@ fn every_command_answers() {
 }
 
 #[test]
-fn commands_for_later_modules_say_so_plainly() {
+fn balance_finds_the_coefficients_and_offers_them_for_take() {
     let dir = tempfile::tempdir().unwrap();
-    for command in ["/balance 1", "/dope Y2O3", "/law 1", "/brouwer"] {
-        let (out, code) = output(
-            dir.path(),
-            &["--host", "ZrO2"],
-            &format!("{REDUCTION}\n{command}\n"),
-        );
-        assert_eq!(code, 1, "{command}");
-        assert!(
-            out.contains("is not available in this build yet"),
-            "{command}: {out}"
-        );
+    // source: common practice — Y2O3 in ZrO2 is written
+    // Y2O3 -> 2 Y_Zr' + V_O•• + 3 O_O× (Smyth 2000, ch. 5, from memory).
+    let input = [
+        "Y2O3 -> Y_Zr' + V_O.. + O_O",
+        "/balance 1",
+        "/take",
+        "/list",
+        "/balance 1",
+    ]
+    .join("\n");
+    let (out, code) = output(dir.path(), &["--host", "ZrO2"], &input);
+    // The first line fails to balance, so the session reports a problem.
+    assert_eq!(code, 1, "{out}");
+    assert!(
+        out.contains("Y2O3 → 2 Y_Zr′ + V_O•• + 3 O_O×\n  /take keeps it in place of [1]"),
+        "{out}"
+    );
+    assert!(
+        out.contains("[1] ✓ balanced  Y2O3 → 2 Y_Zr′ + V_O•• + 3 O_O×"),
+        "{out}"
+    );
+    assert!(out.contains("[1] is balanced as written"), "{out}");
+    // Coefficients written are kept, as `lacuna balance` keeps them;
+    // `--free` lets them go.
+    let (out, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "Y2O3 -> 2Y_Zr' + 2V_O.. + 3O_O\n/balance 1\n/balance 1 --free\n",
+    );
+    assert_eq!(code, 1, "{out}");
+    assert!(out.contains("error[K605]"), "{out}");
+    assert!(out.contains("/take keeps it in place of [1]"), "{out}");
+}
+
+#[test]
+fn balance_reports_several_and_none_as_the_command_does() {
+    let dir = tempfile::tempdir().unwrap();
+    // Two independent reactions share these species: reduction and the
+    // band gap (common practice).
+    let (several, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "O_O -> V_O.. + e' + h. + O2(g)\n/balance 1 --free\n",
+    );
+    let cli = cargo_bin_cmd!("lacuna")
+        .args([
+            "balance",
+            "--host",
+            "ZrO2",
+            "--free",
+            "O_O -> V_O.. + e' + h. + O2(g)",
+        ])
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    let cli = String::from_utf8(cli.stdout).unwrap();
+    let first = cli.lines().next().unwrap_or_default();
+    assert!(first.contains("independent balanced reactions"), "{cli}");
+    assert!(several.contains(first), "{several}\n---\n{cli}");
+    assert!(!several.contains("/take keeps"), "{several}");
+    assert_eq!(code, 1);
+    // Nothing balances a lone vacancy; the reason is given.
+    let (none, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "nil -> V_O..\n/balance 1\n",
+    );
+    assert_eq!(code, 1);
+    assert!(none.contains("error[K601]"), "{none}");
+}
+
+#[test]
+fn dope_ranks_the_mechanisms_in_the_session_host() {
+    let dir = tempfile::tempdir().unwrap();
+    // source: common practice — Y2O3 in ZrO2 is compensated by oxygen
+    // vacancies (yttria-stabilised zirconia), so that mechanism ranks first.
+    let (out, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "/dope Y2O3\n/dope Y2O3 Zr\n",
+    );
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("Y2O3 in ZrO2: Y3+ from Y2O3"), "{out}");
+    assert!(
+        out.contains("1  Zr    V_O••                +21.3 %"),
+        "{out}"
+    );
+    assert!(out.contains("Y2O3 → 2 Y_Zr′ + 3 O_O× + V_O••"), "{out}");
+    assert!(out.contains("it is a guide, not a prediction"), "{out}");
+    // The same table as `lacuna dope`.
+    let cli = cargo_bin_cmd!("lacuna")
+        .args(["dope", "ZrO2", "Y2O3"])
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    let cli = String::from_utf8(cli.stdout).unwrap();
+    for line in cli.lines().skip(3) {
+        assert!(out.contains(line), "missing {line:?} in\n{out}");
     }
+}
+
+#[test]
+fn dope_explains_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let (out, code) = output(dir.path(), &[], "/dope Y2O3\n");
+    assert_eq!(code, 1);
+    assert!(out.contains("no host yet"), "{out}");
+    assert!(out.contains("/host ZrO2"), "{out}");
+    let (out, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "/dope Qq2O3\n/dope Y2O3 O\n/dope\n",
+    );
+    assert_eq!(code, 1);
+    assert!(out.contains("`Qq` is not an element symbol"), "{out}");
+    assert!(out.contains(" --> <stdin>:1:7"), "{out}");
+    assert!(out.contains("O is not a cation site"), "{out}");
+    assert!(out.contains(" --> <stdin>:2:12"), "{out}");
+    assert!(out.contains("`/dope` takes a dopant"), "{out}");
+}
+
+#[test]
+fn law_writes_the_mass_action_law_as_the_command_does() {
+    let dir = tempfile::tempdir().unwrap();
+    // source: common practice — K_red = [V_O••]·n²·pO2^½ for the reduction
+    // (Smyth 2000, ch. 3, from memory).
+    let (out, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        &format!("red: {REDUCTION}\n/law red\n/law 2\n"),
+    );
+    assert_eq!(code, 1, "{out}");
+    assert!(
+        out.contains("red: O_O× → V_O•• + 2 e′ + ½ O2(g)    (reaction 1)"),
+        "{out}"
+    );
+    assert!(
+        out.contains("K_red = [V_O••]·n²·pO₂^(1/2) / [O_O×] ≈ [V_O••]·n²·pO₂^(1/2)"),
+        "{out}"
+    );
+    assert!(out.contains("no reaction `2`"), "{out}");
+    // With the data of a loaded file, K(T) too.
+    let (out, code) = output(dir.path(), &[], &format!("/load {}\n/law red\n", example()));
+    assert_eq!(code, 0, "{out}");
+    assert!(
+        out.contains("K_red(T) = exp(ΔS/k)·exp(−ΔH/kT) with ΔH = 4.6 eV"),
+        "{out}"
+    );
+    // Without a host the reaction cannot be checked, so no law.
+    let (out, code) = output(dir.path(), &[], &format!("{REDUCTION}\n/law 1\n"));
+    assert_eq!(code, 1);
+    assert!(out.contains("no mass-action law is written"), "{out}");
+    assert!(out.contains("/host ZrO2"), "{out}");
+}
+
+/// The demo model: an acceptor-doped zirconia with invented data.
+fn example() -> String {
+    format!(
+        "{}/examples/electrolyte-notebook.kvr",
+        env!("CARGO_MANIFEST_DIR")
+    )
+}
+
+#[test]
+fn brouwer_orders_the_regimes_of_a_loaded_model_as_the_command_does() {
+    let dir = tempfile::tempdir().unwrap();
+    let (out, code) = output(dir.path(), &[], &format!("/load {}\n/brouwer\n", example()));
+    assert_eq!(code, 0, "{out}");
+    // source: D. M. Smyth, The Defect Chemistry of Metal Oxides (2000),
+    // acceptor-doped oxides (from memory): n = 2[V_O••] gives −1/6, the
+    // acceptor-fixed regime n −1/4 and p +1/4, [A′] = p gives [V_O••] −1/2.
+    assert!(
+        out.contains(
+            " 2  [Y_Zr′] = 2[V_O••]  2.01e-22   0.0216     0           −1/4        +1/4        0"
+        ),
+        "{out}"
+    );
+    // The regimes part is the same text `lacuna brouwer` prints.
+    let cli = cargo_bin_cmd!("lacuna")
+        .args(["brouwer", &example()])
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    let cli = String::from_utf8(cli.stdout).unwrap();
+    let start = cli.find("Brouwer regimes along pO₂").unwrap();
+    let end = cli.find("Full solution").unwrap();
+    assert!(
+        out.contains(cli[start..end].trim_end()),
+        "{out}\n---\n{cli}"
+    );
+    assert!(
+        out.contains("note: shown for reference only (no data): dope"),
+        "{out}"
+    );
+}
+
+#[test]
+fn brouwer_without_k_values_gives_every_regime_and_says_why_unordered() {
+    let dir = tempfile::tempdir().unwrap();
+    // source: P. Kofstad, Nonstoichiometry, Diffusion and Electrical
+    // Conductivity in Binary Metal Oxides (1972) (from memory): reduction
+    // with n = 2[V_O••] gives −1/6; n = p leaves [V_O••] ∝ pO2^(−1/2).
+    let input = format!("red: {REDUCTION}\ngap: nil -> e' + h.\n/brouwer\n/brouwer red\n");
+    let (out, code) = output(dir.path(), &["--host", "CeO2"], &input);
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("not ordered"), "{out}");
+    assert!(
+        out.contains(" 1  n = 2[V_O••]  −1/6        −1/6        +1/6"),
+        "{out}"
+    );
+    assert!(
+        out.contains(" 2  n = p         −1/2        0           0"),
+        "{out}"
+    );
+    assert!(
+        out.contains("K values are needed to order the regimes along pO₂"),
+        "{out}"
+    );
+    assert!(out.contains("model       [1 red] on host CeO2"), "{out}");
+}
+
+#[test]
+fn brouwer_explains_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let (out, code) = output(dir.path(), &[], "/brouwer\n");
+    assert_eq!(code, 1);
+    assert!(out.contains("the session has no reactions"), "{out}");
+    // No host.
+    let (out, code) = output(dir.path(), &[], &format!("{REDUCTION}\n/brouwer\n"));
+    assert_eq!(code, 1);
+    assert!(
+        out.contains("[1] has no host, and a model needs one"),
+        "{out}"
+    );
+    // Unknown reaction, and two hosts in one model.
+    let input = format!("{REDUCTION}\n/brouwer 7\n/host CeO2\nnil -> e' + h.\n/brouwer\n");
+    let (out, code) = output(dir.path(), &["--host", "ZrO2"], &input);
+    assert_eq!(code, 1);
+    assert!(out.contains("no reaction `7`"), "{out}");
+    assert!(out.contains(" --> <stdin>:2:10"), "{out}");
+    assert!(out.contains("a model has one host"), "{out}");
+    assert!(out.contains("`/brouwer 1`"), "{out}");
+    // A reaction that does not balance: the model's problem, shown on it.
+    let (out, code) = output(
+        dir.path(),
+        &["--host", "ZrO2"],
+        "O_O -> V_O. + 2e' + 1/2 O2(g)\n/brouwer\n",
+    );
+    assert_eq!(code, 1);
+    assert!(out.contains(" --> reaction 1:1:"), "{out}");
+    assert!(out.contains("no model: nothing was solved"), "{out}");
+    // A loaded line that did not parse is no reaction of the session: left out, and said.
+    fs::write(
+        dir.path().join("slip.kvr"),
+        format!("host CeO2\nred: {REDUCTION}\nslip: O_O => => V_O\n"),
+    )
+    .unwrap();
+    let (out, _) = output(dir.path(), &["slip.kvr"], "/brouwer\n");
+    assert!(out.contains(" 1  n = 2[V_O••]  −1/6        −1/6"), "{out}");
+    assert!(out.contains("left out 1 line of a loaded file"), "{out}");
 }
 
 #[test]

@@ -14,6 +14,7 @@
 pub mod build;
 mod explain;
 mod matrix;
+pub mod report;
 
 use crate::diagnostic::{Code, Diagnostic};
 use crate::elements;

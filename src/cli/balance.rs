@@ -3,9 +3,9 @@
 //! they cannot or the reaction has errors, 2 for usage errors.
 
 use super::{ColorChoice, fail, host_argument};
-use crate::balance::{self, Options, Outcome, Status};
-use crate::check::check_reaction;
-use crate::diagnostic::{Code, Diagnostic, Severity};
+use crate::balance::report::{check_and_balance, write_outcome};
+use crate::balance::{Outcome, Status};
+use crate::diagnostic::Diagnostic;
 use crate::host::Host;
 use crate::notation::{Style, parse_reaction, render_reaction};
 use crate::number;
@@ -170,46 +170,20 @@ fn balance_text(
     host: Option<&Host>,
     keep_written: bool,
 ) -> (Option<Outcome>, Vec<Diagnostic>) {
-    let (parsed, mut diagnostics) = parse_reaction(text, 0..text.len());
-    let outcome = parsed.map(|reaction| {
-        // The checker's plausibility findings stand; its balance failures are
-        // what the balancer answers, and a missing host only limits it.
-        let verdict = check_reaction(&reaction, host);
-        for d in verdict.diagnostics {
-            match d.code {
-                Code::MassBalance | Code::ChargeBalance | Code::SiteBalance => {}
-                Code::NoHost => {
-                    let mut note = Diagnostic::new(
-                        Code::NoHost,
-                        d.span,
-                        "no host given: balanced for mass and charge only, sites not counted",
-                    )
-                    .with_help("pass --host, e.g. `--host ZrO2`, to balance the site ratio too");
-                    note.severity = Severity::Warning;
-                    diagnostics.push(note);
-                }
-                _ => diagnostics.push(d),
-            }
-        }
-        if diagnostics.iter().any(Diagnostic::is_error) {
-            return Outcome {
-                status: Status::None,
-                reactions: Vec::new(),
-                diagnostics: Vec::new(),
-            };
-        }
-        balance::balance(
-            &reaction,
-            host,
-            Options {
+    let (parsed, found) = parse_reaction(text, 0..text.len());
+    let (outcome, diagnostics) = match parsed {
+        Some(reaction) => {
+            let (outcome, diagnostics) = check_and_balance(
+                &reaction,
+                host,
                 keep_written,
-                explain: true,
-            },
-        )
-    });
-    if let Some(o) = &outcome {
-        diagnostics.extend(o.diagnostics.iter().cloned());
-    }
+                found,
+                "pass --host, e.g. `--host ZrO2`, to balance the site ratio too",
+            );
+            (Some(outcome), diagnostics)
+        }
+        None => (None, found),
+    };
     let located = diagnostics.into_iter().map(|d| d.locate(1, text)).collect();
     (outcome, located)
 }
@@ -225,35 +199,7 @@ fn human(
     let mut out = io::stdout().lock();
     let mut printed = false;
     if let Some(outcome) = outcome {
-        printed = !outcome.reactions.is_empty();
-        let shown = |b: &balance::Balanced| {
-            render_reaction(
-                if args.conventional {
-                    &b.conventional
-                } else {
-                    &b.reaction
-                },
-                style,
-            )
-        };
-        match outcome.status {
-            Status::Unique => {
-                for b in &outcome.reactions {
-                    writeln!(out, "{}", palette.strong(&shown(b)))?;
-                }
-            }
-            Status::Several => {
-                writeln!(
-                    out,
-                    "{} independent balanced reactions; every combination of them balances:",
-                    outcome.reactions.len()
-                )?;
-                for (i, b) in outcome.reactions.iter().enumerate() {
-                    writeln!(out, "  {}. {}", i + 1, palette.strong(&shown(b)))?;
-                }
-            }
-            Status::None => {}
-        }
+        printed = write_outcome(&mut out, palette, outcome, style, args.conventional)?;
     }
     for d in diagnostics {
         if printed {

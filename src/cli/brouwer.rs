@@ -4,7 +4,7 @@
 
 use super::model_input::{diagnostic_json, gather, print_diagnostics};
 use super::{ColorChoice, fail, host_argument};
-use crate::brouwer::{self, Regime, Sweep};
+use crate::brouwer::{self, Along, Regime, Sweep};
 use crate::diagnostic::{Code, Diagnostic};
 use crate::equilibrium::{self, Point};
 use crate::model::{self, Model, Overrides};
@@ -518,93 +518,12 @@ fn table_text(model: &Model, run: &Run) -> String {
         format!("{text}{}", " ".repeat(w.saturating_sub(n)))
     };
     if !run.regimes.is_empty() {
-        let temperature_sweep = matches!(run.mode, Mode::Temperature { .. });
-        let _ = writeln!(
-            out,
-            "\nBrouwer regimes along {} (exact slopes d log[X] / d log pO₂):",
-            if temperature_sweep {
-                "temperature"
-            } else {
-                "pO₂"
-            }
-        );
-        let conditions: Vec<String> = run
-            .regimes
-            .iter()
-            .map(|r| r.neutrality(model, Style::Unicode))
-            .collect();
-        let cw = conditions
-            .iter()
-            .map(|c| c.chars().count())
-            .max()
-            .unwrap_or(10)
-            .max(10)
-            + 2;
-        let (from_name, to_name) = if temperature_sweep {
-            ("from T/K", "to T/K")
+        let along = if matches!(run.mode, Mode::Temperature { .. }) {
+            Along::Temperature
         } else {
-            ("pO₂ from", "pO₂ to")
+            Along::Po2
         };
-        let mut header = format!(
-            " #  {}{}{}",
-            pad("condition", cw),
-            pad(from_name, 11),
-            pad(to_name, 11)
-        );
-        for n in &names {
-            header.push_str(&pad(n, width));
-        }
-        let _ = writeln!(out, "{}", header.trim_end());
-        for (i, (r, c)) in run.regimes.iter().zip(&conditions).enumerate() {
-            let mut row = format!(
-                "{:>2}  {}{}{}",
-                i + 1,
-                pad(c, cw),
-                pad(&sig(r.from, 3), 11),
-                pad(&sig(r.to, 3), 11)
-            );
-            for s in 0..model.species.len() {
-                row.push_str(&pad(&unicode_slope(r.slope(model, s)), width));
-            }
-            let _ = writeln!(out, "{}", row.trim_end());
-        }
-        for (j, t) in model.totals.iter().enumerate() {
-            let _ = writeln!(
-                out,
-                "\n    dopant slopes d log[X] / d log(total {}):",
-                t.subject_unicode
-            );
-            for (i, r) in run.regimes.iter().enumerate() {
-                let mut row = format!(
-                    "{:>2}  {}{}",
-                    i + 1,
-                    pad(&conditions[i], cw),
-                    " ".repeat(22)
-                );
-                for s in 0..model.species.len() {
-                    row.push_str(&pad(&unicode_slope(r.laws.total[s][j]), width));
-                }
-                let _ = writeln!(out, "{}", row.trim_end());
-            }
-        }
-        if temperature_sweep {
-            let _ = writeln!(out, "\n    apparent enthalpies (eV), −k d ln[X] / d(1/T):");
-            for (i, r) in run.regimes.iter().enumerate() {
-                let mut row = format!(
-                    "{:>2}  {}{}",
-                    i + 1,
-                    pad(&conditions[i], cw),
-                    " ".repeat(22)
-                );
-                for s in 0..model.species.len() {
-                    let h = r
-                        .enthalpy(model, s)
-                        .map_or_else(|| "?".to_string(), |h| sig(h, 4));
-                    row.push_str(&pad(&h, width));
-                }
-                let _ = writeln!(out, "{}", row.trim_end());
-            }
-        }
+        out.push_str(&brouwer::regimes_table(model, &run.regimes, along));
     }
     let what = match run.mode {
         Mode::Po2 { .. } | Mode::Temperature { .. } => "Full solution, every term kept",

@@ -7,12 +7,12 @@ use super::balance::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
 use super::{ColorChoice, fail, host_argument};
 use crate::diagnostic::{Code, Diagnostic};
 use crate::dope::level::{self, Composition, Level, Volume};
+use crate::dope::table::{TableInput, compound_text, write_report};
 use crate::dope::{
-    CAVEAT, Dopant, DopeOptions, Gas, Mechanism, Report, SizeMatch, compensating_text, mechanisms,
+    CAVEAT, Dopant, DopeOptions, Gas, Report, SizeMatch, compensating_text, mechanisms,
     parse_dopant, parse_site, reaction_text, site_name,
 };
 use crate::host::Host;
-use crate::notation::{Style, render_term};
 use crate::number::{self, Q};
 use crate::render::human::write_diagnostic;
 use clap::Args;
@@ -219,35 +219,12 @@ fn percent(q: Q) -> String {
     format!("{v:.3} %")
 }
 
-fn size_text(s: &SizeMatch) -> String {
-    format!(
-        "{:+.1} % ({:.1} vs {:.1} pm, CN {})",
-        s.mismatch * 100.0,
-        s.dopant.pm,
-        s.host.pm,
-        s.dopant.cn
-    )
-}
-
-fn mismatch_text(m: &Mechanism) -> String {
-    m.size
-        .as_ref()
-        .map_or_else(|| "— (interstitial)".to_string(), size_text)
-}
-
 fn width(text: &str) -> usize {
     text.chars().count()
 }
 
 fn pad(text: &str, to: usize) -> String {
     format!("{text}{}", " ".repeat(to.saturating_sub(width(text))))
-}
-
-fn compound_text(dopant: &Dopant) -> String {
-    render_term(
-        &crate::balance::build::term(crate::balance::build::compound(dopant.compound.clone())),
-        Style::Unicode,
-    )
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -263,104 +240,18 @@ fn human(
     let palette = args.color.palette();
     let style = args.style.style();
     let mut out = io::stdout().lock();
-    writeln!(
-        out,
-        "{} in {}: {} from {}",
-        palette.strong(&dopant.written),
-        palette.strong(&host.formula_text),
-        dopant.ion(),
-        compound_text(dopant)
+    write_report(
+        &mut out,
+        palette,
+        &TableInput {
+            host,
+            dopant,
+            report,
+            style,
+            integers: args.integers,
+        },
+        &|site| format!("override with --cn {site}=N"),
     )?;
-    let s = &report.structure;
-    writeln!(
-        out,
-        "structure: {}{}",
-        s.name,
-        s.detail
-            .as_ref()
-            .map_or(String::new(), |d| format!(" ({d})"))
-    )?;
-    for site in &s.sites {
-        let name = host
-            .sublattices
-            .get(site.sublattice)
-            .map_or("?".into(), |x| x.name());
-        let how = match site.source {
-            crate::dope::CnSource::Given => "given".to_string(),
-            crate::dope::CnSource::Assumed => {
-                format!("assumed from the structure; override with --cn {name}=N")
-            }
-            crate::dope::CnSource::Fallback => {
-                format!("assumed, structure not recognised; override with --cn {name}=N")
-            }
-        };
-        writeln!(out, "  {name}: CN {} ({how})", site.cn)?;
-    }
-    if !report.mechanisms.is_empty() {
-        let rows: Vec<[String; 5]> = report
-            .mechanisms
-            .iter()
-            .map(|m| {
-                [
-                    m.rank.to_string(),
-                    site_name(host, m.site),
-                    compensating_text(host, m, style),
-                    mismatch_text(m),
-                    reaction_text(m, args.integers, style),
-                ]
-            })
-            .collect();
-        let head = ["#", "site", "compensation", "radius mismatch", "reaction"];
-        let mut widths = head.map(width);
-        for row in &rows {
-            for (w, cell) in widths.iter_mut().zip(row) {
-                *w = (*w).max(width(cell));
-            }
-        }
-        writeln!(out)?;
-        let line = |cells: &[String; 5]| {
-            let mut text = String::new();
-            for (i, cell) in cells.iter().enumerate() {
-                if i == 4 {
-                    text.push_str(cell);
-                } else if i == 0 {
-                    text.push_str(&format!(
-                        "{}{}  ",
-                        " ".repeat(widths[0] - width(cell)),
-                        cell
-                    ));
-                } else {
-                    text.push_str(&pad(cell, widths[i]));
-                    text.push_str("  ");
-                }
-            }
-            text
-        };
-        writeln!(out, "{}", palette.frame(&line(&head.map(String::from))))?;
-        let indent = " ".repeat(widths[0] + 2);
-        for (m, row) in report.mechanisms.iter().zip(&rows) {
-            writeln!(out, "{}", line(row))?;
-            writeln!(
-                out,
-                "{indent}{} {}",
-                palette.frame("when:"),
-                m.compensation.conditions()
-            )?;
-            if let Some(second) = &m.second_size {
-                writeln!(
-                    out,
-                    "{indent}{} second site {}",
-                    palette.frame("size:"),
-                    size_text(second)
-                )?;
-            }
-            for note in &m.notes {
-                writeln!(out, "{indent}{} {note}", palette.frame("note:"))?;
-            }
-        }
-        writeln!(out)?;
-        writeln!(out, "{} {CAVEAT}", palette.frame("note:"))?;
-    }
     if let Some(LevelResult::Composition(c, rank)) = level {
         writeln!(out)?;
         write_level(&mut out, args, host, dopant, c, *rank, volume)?;

@@ -3,12 +3,14 @@
 //! table or JSON to stdout and, on request, fitted curves (CSV) and a plot
 //! (SVG) to files.
 
+use super::model_input::{gather, print_diagnostics};
 use super::{ColorChoice, fail};
 use crate::diagnostic::{Code, Diagnostic};
 use crate::fit::arrhenius::ArrheniusForm;
 use crate::fit::regimes::ModelRegimes;
 use crate::fit::segment::SegmentOptions;
 use crate::fit::{FitError, FitOptions, analyse, csv_input, report, svg};
+use crate::model::{self, Model, Overrides};
 use crate::render::Palette;
 use clap::{Args, ValueEnum};
 use std::io::{self, Read, Write};
@@ -190,15 +192,56 @@ fn read_input(path: &Path) -> io::Result<Vec<u8>> {
     Ok(bytes)
 }
 
-/// The regimes of a model file.
+/// The regimes of a model file, read as `lacuna brouwer` reads it. Its
+/// problems are printed with their lines (exit code 1).
 fn model_regimes(path: &Path) -> Result<ModelRegimes, ExitCode> {
-    // integration point: read the model file with the model module, derive
-    // its Brouwer regimes, and convert them to `ModelRegimes` (see
-    // `ModelRegimes::textbook` for the shape). Until then, say so.
-    Err(fail(format!(
-        "cannot use {} yet: this build does not read model files for `fit`; leave out --model to compare with the textbook regimes",
-        path.display()
-    )))
+    let sources = gather(std::slice::from_ref(&path.to_path_buf()), &[])?;
+    let Some(source) = sources.first() else {
+        return Err(fail("no model to read"));
+    };
+    let doc = model::read(&source.name, &source.text, None);
+    let mut stderr = io::stderr();
+    let refuse = |diagnostics: &[Diagnostic], stderr: &mut io::Stderr| {
+        let _ = print_diagnostics(
+            stderr,
+            Palette::PLAIN,
+            &source.name,
+            &doc.lines,
+            diagnostics,
+        );
+        let _ = writeln!(
+            stderr,
+            "lacuna: the model in {} cannot give the regimes to compare with; nothing was fitted",
+            source.name
+        );
+        ExitCode::from(1)
+    };
+    if let Some((d, _)) = &source.problem {
+        return Err(refuse(std::slice::from_ref(d), &mut stderr));
+    }
+    let built = Model::build(&doc, Overrides::for_slopes(&doc)).and_then(|m| {
+        // Notes (reactions kept for reference only) are worth seeing.
+        let _ = print_diagnostics(
+            &mut io::stderr(),
+            Palette::PLAIN,
+            &source.name,
+            &doc.lines,
+            &m.notes,
+        );
+        ModelRegimes::from_model(&m).map_err(|d| vec![d])
+    });
+    match built {
+        Ok(regimes) => Ok(regimes),
+        Err(mut diagnostics) => {
+            // `fit` has no --host: the file must say it.
+            for d in &mut diagnostics {
+                if d.code == Code::NoHost {
+                    d.help = Some("add a `host ZrO2` line at the top of the model file".into());
+                }
+            }
+            Err(refuse(&diagnostics, &mut stderr))
+        }
+    }
 }
 
 /// Prints every problem of the measurement file and returns exit code 1.

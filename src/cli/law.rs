@@ -4,7 +4,7 @@
 use super::model_input::{Source, diagnostic_json, gather, print_diagnostics};
 use super::{ColorChoice, fail, host_argument};
 use crate::diagnostic::Diagnostic;
-use crate::law::{FactorKind, Law, k_of_t_text, mass_action_law};
+use crate::law::{FactorKind, Law, k_of_t_text, mass_action_law, write_law_text};
 use crate::model::{self, DataLine, Document};
 use crate::notation::Style;
 use crate::number;
@@ -255,58 +255,16 @@ fn write_text(
         _ => Style::Unicode,
     };
     for (e, t) in entries.iter().zip(temperatures) {
-        let name = e
-            .law
-            .label
-            .as_deref()
-            .map_or_else(String::new, |l| format!("{l}: "));
-        let reaction = if style == Style::Ascii {
-            &e.law.reaction_ascii
-        } else {
-            &e.law.reaction_unicode
-        };
-        if style == Style::Latex {
-            writeln!(
-                out,
-                "% {name}{} ({}:{})",
-                e.law.reaction_ascii, e.source, e.line
-            )?;
-            writeln!(
-                out,
-                "\\begin{{equation}}\n  {}\n\\end{{equation}}",
-                e.law.text(Style::Latex)
-            )?;
-            if let Some(thermo) = &e.thermo {
-                writeln!(out, "% {}", k_of_t_text(&e.law, thermo, *t, Style::Ascii))?;
-                if thermo.temperature_dependent() {
-                    writeln!(
-                        out,
-                        "\\begin{{equation}}\n  {}(T) = \\exp(\\Delta S/k)\\,\\exp(-\\Delta H/kT)\n\\end{{equation}}",
-                        e.law.k_symbol(Style::Latex)
-                    )?;
-                }
-            }
-            writeln!(out, "% units: {}", e.law.units_text(e.host.as_deref()))?;
-            for a in &e.law.assumptions {
-                writeln!(out, "% assumes: {a}")?;
-            }
-            writeln!(out)?;
-            continue;
-        }
-        writeln!(out, "{name}{reaction}    ({}:{})", e.source, e.line)?;
-        writeln!(out, "  {}", e.law.text(style))?;
-        if let Some(thermo) = &e.thermo {
-            writeln!(out, "  {}", k_of_t_text(&e.law, thermo, *t, style))?;
-        }
-        writeln!(out, "  units: {}", e.law.units_text(e.host.as_deref()))?;
-        for (i, a) in e.law.assumptions.iter().enumerate() {
-            writeln!(
-                out,
-                "  {} {a}",
-                if i == 0 { "assumes:" } else { "        " }
-            )?;
-        }
-        writeln!(out)?;
+        let place = format!("{}:{}", e.source, e.line);
+        write_law_text(
+            out,
+            &e.law,
+            e.thermo.as_ref(),
+            *t,
+            e.host.as_deref(),
+            &place,
+            style,
+        )?;
     }
     for (source, unicode, ascii) in neutralities {
         let text = if style == Style::Ascii {

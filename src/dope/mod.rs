@@ -20,6 +20,7 @@
 pub mod dopant;
 pub mod level;
 pub mod structure;
+pub mod table;
 
 pub use dopant::{Dopant, parse_dopant};
 pub use structure::{CnSource, Radius, SiteCn, Structure};

@@ -22,6 +22,7 @@
 pub mod arrhenius;
 pub mod csv_input;
 pub mod decompose;
+pub mod from_model;
 pub mod linalg;
 pub mod regimes;
 pub mod report;
@@ -223,6 +224,8 @@ pub struct FitReport {
     pub uncertainties: bool,
     pub ignored_columns: Vec<String>,
     pub regimes_source: String,
+    /// Every regime the slopes were compared with.
+    pub regimes: Vec<Regime>,
     pub regime: RegimeSummary,
     pub confidence: f64,
     pub arrhenius_form: ArrheniusForm,
@@ -322,6 +325,7 @@ pub fn analyse(
         uncertainties,
         ignored_columns: measurements.ignored_columns.clone(),
         regimes_source: model.source.clone(),
+        regimes: model.regimes.clone(),
         regime: RegimeSummary {
             name: regime.name.clone(),
             neutrality: regime.neutrality.clone(),

@@ -3,8 +3,9 @@
 //! constants each one carries (so an activation energy can be turned into a
 //! reaction enthalpy). Also the matching of a measured slope to them.
 //!
-//! In: nothing (the textbook set) or a model's regimes. Out: `ModelRegimes`,
-//! and `SlopeMatch` for a measured slope with its standard error.
+//! In: nothing (the textbook set) or a model (converted by `from_model`).
+//! Out: `ModelRegimes`, and `SlopeMatch` for a measured slope with its
+//! standard error.
 
 use crate::number::{self, Q};
 use serde::Serialize;
@@ -198,13 +199,10 @@ impl ModelRegimes {
         }
     }
 
-    // integration point: a model file (`K`/`dH`/`dS`/`fix`/`temperature`/
-    // `po2` lines, read by the model module with its Brouwer regimes) is
-    // converted to `ModelRegimes` here, one `Regime` per Brouwer regime with
-    // the exact slopes and K exponents of n, p and the ionic defect, and one
-    // `ReactionInfo` per named reaction. The fit takes the result through
-    // `FitOptions::regimes`; until this is wired, `lacuna fit --model`
-    // reports that model files are not read yet.
+    /// The exact regimes of a defect model (see `super::from_model`).
+    pub fn from_model(model: &crate::model::Model) -> Result<Self, crate::diagnostic::Diagnostic> {
+        super::from_model::model_regimes(model)
+    }
 
     /// The regime the decomposition takes its exponents from: `name` if
     /// given, else the model's default, else the first regime whose three

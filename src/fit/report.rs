@@ -78,6 +78,7 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         term("σ_n°", e.n),
         term("σ_p°", e.p)
     )?;
+    write_regimes(out, r)?;
     for iso in &r.isotherms {
         writeln!(out)?;
         write_isotherm(out, r, iso, p)?;
@@ -90,6 +91,45 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         for n in &r.notes {
             writeln!(out, "  - {n}")?;
         }
+    }
+    Ok(())
+}
+
+/// The regimes the slopes are compared with: name, exact slopes, condition.
+fn write_regimes(out: &mut dyn Write, r: &FitReport) -> io::Result<()> {
+    writeln!(
+        out,
+        "  regimes compared (exact slopes d log c / d log pO2 of n, p and the ionic term):"
+    )?;
+    let width = r
+        .regimes
+        .iter()
+        .map(|g| g.name.chars().count())
+        .max()
+        .unwrap_or(0);
+    let ion_width = r
+        .regimes
+        .iter()
+        .map(|g| g.ionic_defect.chars().count())
+        .max()
+        .unwrap_or(0);
+    let pad = |text: &str, to: usize| {
+        format!(
+            "{text}{}",
+            " ".repeat(to.saturating_sub(text.chars().count()))
+        )
+    };
+    for g in &r.regimes {
+        writeln!(
+            out,
+            "    {}  n {:>5}  p {:>5}  {} {:>5}  {}",
+            pad(&g.name, width),
+            slope_text(g.n.slope),
+            slope_text(g.p.slope),
+            pad(&g.ionic_defect, ion_width),
+            slope_text(g.ion.slope),
+            g.neutrality
+        )?;
     }
     Ok(())
 }

@@ -5,7 +5,6 @@
 //! completion and hints pick it up from the table.
 
 use super::{ArgKind, Args, CommandSpec, Failure, HostSlot, SIGIL, Session, style_of};
-use crate::diagnostic::{Code, Diagnostic};
 use crate::host::Host;
 use crate::notation::{Entity, Style, render_reaction, render_term};
 use crate::typeset::{self, Form};
@@ -107,51 +106,47 @@ pub static COMMANDS: &[CommandSpec] = &[
     CommandSpec {
         name: "take",
         aliases: &[],
-        summary: "replace the last failing reaction with the balanced form on offer",
+        summary: "replace a reaction with the balanced form on offer",
         usage: "",
-        details: "When a reaction does not balance and a balanced form exists, the\nworkbench offers it; `/take` keeps it in place of what was typed.",
+        details: "When a reaction does not balance and a balanced form exists, the\nworkbench offers it, and `/balance` offers a unique answer; `/take` keeps\nit in place of what was typed.",
         arguments: ArgKind::None,
         run: take,
     },
-    // integration point: the balancer (src/balance.rs) replaces `not_yet` in
-    // the next two entries with its handlers; usage and help stay as written.
     CommandSpec {
         name: "balance",
         aliases: &["bal"],
         summary: "find coefficients that balance a reaction",
-        usage: "WHICH",
-        details: "Solves exactly for the coefficients of the named reaction, keeping those you wrote.",
+        usage: "WHICH [--free]",
+        details: "Solves exactly for the coefficients of the named reaction, keeping those you\nwrote (`--free`: all unknown), and prints the answer as `lacuna balance`\ndoes: one balanced reaction, several independent ones, or none and why.\nA unique answer that differs from the reaction is offered: `/take` keeps it.",
         arguments: ArgKind::Entries,
-        run: not_yet,
+        run: super::chemistry::balance,
     },
     CommandSpec {
         name: "dope",
         aliases: &[],
-        summary: "write the incorporation reactions of a dopant oxide",
+        summary: "rank the ways a dopant enters the host",
         usage: "OXIDE [SITE]",
-        details: "Proposes the balanced ways a dopant oxide dissolves in the host.",
+        details: "Proposes every balanced incorporation reaction of a dopant (its oxide,\n`Y2O3`, or ion, `Y3+`) in the session's host, ranked by size and charge\nmatch, as `lacuna dope` prints them. SITE is a cation site (`Ti`, `Fe:A`)\nor `i` for an interstitial. Type a reaction from the table to keep it.",
         arguments: ArgKind::None,
-        run: not_yet,
+        run: super::chemistry::dope,
     },
-    // integration point: mass-action laws (src/law.rs) replace `not_yet` in the
-    // next two entries.
     CommandSpec {
         name: "law",
         aliases: &[],
-        summary: "write the mass-action law of a reaction",
-        usage: "WHICH",
-        details: "The equilibrium constant expression of the named reaction.",
+        summary: "write the mass-action law of reactions",
+        usage: "[WHICH...|all]",
+        details: "The equilibrium constant expression of the named reactions (all by\ndefault), with K(T) when a loaded file gives its data, the units of K and\nthe assumptions, as `lacuna law` prints them. A reaction that fails its\nchecks gets no law.",
         arguments: ArgKind::Entries,
-        run: not_yet,
+        run: super::chemistry::law,
     },
     CommandSpec {
         name: "brouwer",
         aliases: &[],
-        summary: "slopes of defect concentrations against pO2 for the session's reactions",
-        usage: "[WHICH...]",
-        details: "The Brouwer approximation over the session's reactions.",
+        summary: "exact Brouwer regimes and slopes of the session's reactions",
+        usage: "[WHICH...|all]",
+        details: "Reads the session (the named reactions, all by default, with the model\nlines of loaded files) as a defect model and prints its exact regimes as\n`lacuna brouwer` does: slopes d log[X] / d log pO2 per regime, ordered\nalong pO2 when K values and a temperature are given. Without them it\nprints every regime the reactions allow, unordered, and says so.",
         arguments: ArgKind::Entries,
-        run: not_yet,
+        run: super::chemistry::brouwer,
     },
     CommandSpec {
         name: "quit",
@@ -514,20 +509,6 @@ fn take(session: &mut Session, args: &Args<'_>, out: &mut dyn Write) -> Result<(
         session.write_verdict(out, index, &analysis, true)?;
     }
     Ok(())
-}
-
-fn not_yet(_session: &mut Session, args: &Args<'_>, _out: &mut dyn Write) -> Result<(), Failure> {
-    let word = args
-        .line
-        .get(args.command.clone())
-        .unwrap_or("this command");
-    Err(Diagnostic::new(
-        Code::WorkbenchCommand,
-        args.command.clone(),
-        format!("`{word}` is not available in this build yet"),
-    )
-    .with_help("type reactions to check them; `/help` lists what this build can do")
-    .into())
 }
 
 fn quit(session: &mut Session, _args: &Args<'_>, _out: &mut dyn Write) -> Result<(), Failure> {

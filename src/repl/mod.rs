@@ -10,9 +10,11 @@
 //!
 //! Commands live in one table, `COMMANDS`: one entry per command with its
 //! name, aliases, one-line help, usage and handler. A command added by another
-//! module is one more entry there (see the integration points in
-//! `commands.rs`). Documentation: grammar/repl.md.
+//! module is one more entry there; `chemistry` holds the handlers that are
+//! thin layers over the balancer, dopants, laws and Brouwer regimes.
+//! Documentation: grammar/repl.md.
 
+mod chemistry;
 mod commands;
 pub mod driver;
 pub mod helper;

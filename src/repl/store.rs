@@ -227,31 +227,41 @@ pub(super) fn load(
 /// trailer. A `host` line kept from a loaded file counts as written, so a
 /// loaded file comes back in its own layout.
 pub(super) fn file_text(session: &Session) -> String {
+    file_text_with_lines(session).0
+}
+
+/// `file_text` and the 1-based line of each entry's reaction in it (the
+/// model commands read the session as a model file and point back).
+pub(super) fn file_text_with_lines(session: &Session) -> (String, Vec<u32>) {
     let mut text = String::new();
+    let mut lines = Vec::with_capacity(session.entries.len());
+    let mut number = 0u32;
+    let mut push = |text: &mut String, line: &str| {
+        text.push_str(line);
+        text.push('\n');
+        number = number.saturating_add(1);
+        number
+    };
     let mut current: Option<Host> = None;
     for entry in &session.entries {
         for line in &entry.preamble {
             if let Line::Host(span) = document::classify(line) {
                 current = Host::parse(line, span).ok();
             }
-            text.push_str(line);
-            text.push('\n');
+            push(&mut text, line);
         }
         if let Some(slot) = &entry.host {
             if current.as_ref() != Some(&slot.host) {
-                text.push_str(&slot.line);
-                text.push('\n');
+                push(&mut text, &slot.line);
                 current = Some(slot.host.clone());
             }
         }
-        text.push_str(&entry.file_line());
-        text.push('\n');
+        lines.push(push(&mut text, &entry.file_line()));
     }
     for line in &session.trailer {
-        text.push_str(line);
-        text.push('\n');
+        push(&mut text, line);
     }
-    text
+    (text, lines)
 }
 
 /// `/save [PATH] [--replace]`

@@ -347,7 +347,7 @@ proptest::proptest! {
     #[test]
     fn no_input_crashes_the_session(
         lines in proptest::collection::vec(
-            r"(/(host|list|ls|name|drop|check|species|ts|typeset|take|help|balance|q) ?)?[a-zA-Z0-9_^{}()\\\\$'.*x+<=>/:#%& •′×→⇌½₂□-]{0,40}",
+            r"(/(host|list|ls|name|drop|check|species|ts|typeset|take|help|balance|bal|dope|law|brouwer|q) ?)?[a-zA-Z0-9_^{}()\\\\$'.*x+<=>/:#%& •′×→⇌½₂□-]{0,40}",
             1..6,
         )
     ) {
@@ -357,7 +357,7 @@ proptest::proptest! {
             proptest::prop_assert!(s.handle_block(line, 1, &mut out).is_ok());
         }
         let mut out = Vec::new();
-        for command in ["/list", "/species", "/ts", "/ts html", "/check", "/name all x", "/name 1 x"] {
+        for command in ["/list", "/species", "/ts", "/ts html", "/check", "/name all x", "/name 1 x", "/law", "/brouwer", "/balance 1", "/dope Y2O3"] {
             proptest::prop_assert!(s.handle_line(command, 1, &mut out).is_ok());
         }
     }
