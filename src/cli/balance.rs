@@ -76,30 +76,7 @@ impl NotationStyle {
     }
 }
 
-/// One diagnostic in the shape `check --format json` uses.
-#[derive(Debug, Serialize)]
-pub struct JsonDiagnostic<'a> {
-    severity: &'static str,
-    code: &'static str,
-    message: &'a str,
-    line: u32,
-    column: u32,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    help: Option<&'a str>,
-}
-
-impl<'a> JsonDiagnostic<'a> {
-    pub fn from(d: &'a Diagnostic) -> Self {
-        JsonDiagnostic {
-            severity: d.severity.as_str(),
-            code: d.code.as_str(),
-            message: &d.message,
-            line: d.line,
-            column: d.column,
-            help: d.help.as_deref(),
-        }
-    }
-}
+pub use crate::render::json::JsonDiagnostic;
 
 #[derive(Debug, Serialize)]
 struct JsonTerm<'a> {

@@ -8,8 +8,9 @@ use crate::engine::{ReactionReport, Sink, Summary};
 use serde::Serialize;
 use std::io::{self, Write};
 
-#[derive(Serialize)]
-struct JsonDiagnostic<'a> {
+/// One diagnostic as every JSON output of Lacuna writes it.
+#[derive(Debug, Serialize)]
+pub struct JsonDiagnostic<'a> {
     severity: &'static str,
     code: &'static str,
     message: &'a str,
@@ -22,7 +23,13 @@ struct JsonDiagnostic<'a> {
 }
 
 impl<'a> JsonDiagnostic<'a> {
-    fn from(d: &'a Diagnostic, source: Option<&'a str>) -> Self {
+    /// A diagnostic whose source is clear from where it is written.
+    pub fn from(d: &'a Diagnostic) -> Self {
+        JsonDiagnostic::located(d, None)
+    }
+
+    /// A diagnostic that names its source (problems outside reactions).
+    pub fn located(d: &'a Diagnostic, source: Option<&'a str>) -> Self {
         JsonDiagnostic {
             severity: d.severity.as_str(),
             code: d.code.as_str(),
@@ -96,7 +103,7 @@ impl<W: Write> Sink for JsonSink<W> {
             diagnostics: report
                 .diagnostics
                 .iter()
-                .map(|d| JsonDiagnostic::from(d, None))
+                .map(|d| JsonDiagnostic::from(d))
                 .collect(),
         };
         serde_json::to_writer(&mut self.out, &record).map_err(to_io)
@@ -108,8 +115,8 @@ impl<W: Write> Sink for JsonSink<W> {
         _line_text: &str,
         diagnostic: &Diagnostic,
     ) -> io::Result<()> {
-        let value =
-            serde_json::to_value(JsonDiagnostic::from(diagnostic, Some(source))).map_err(to_io)?;
+        let value = serde_json::to_value(JsonDiagnostic::located(diagnostic, Some(source)))
+            .map_err(to_io)?;
         self.problems.push(value);
         Ok(())
     }
