@@ -103,7 +103,7 @@ impl<W: Write> Sink for JsonSink<W> {
             diagnostics: report
                 .diagnostics
                 .iter()
-                .map(|d| JsonDiagnostic::from(d))
+                .map(JsonDiagnostic::from)
                 .collect(),
         };
         serde_json::to_writer(&mut self.out, &record).map_err(to_io)
