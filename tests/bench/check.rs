@@ -97,6 +97,10 @@ fn main() -> std::io::Result<()> {
         scan.as_secs_f64(),
         elapsed.as_secs_f64() / scan.as_secs_f64()
     );
+    println!(
+        "bench: check.ns_per_reaction = {:.1}",
+        elapsed.as_secs_f64() * 1e9 / summary.reactions.max(1) as f64
+    );
     match (before, after) {
         (Some(b), Some(a)) => println!(
             "peak resident memory: {:.1} MB before the check, {:.1} MB after (floor < 64 MB)",
