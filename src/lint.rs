@@ -8,9 +8,10 @@
 
 use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::host::{Host, SiteLookup};
-use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Species, Term};
+use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Span, Species, Term};
 use crate::number::Q;
 use std::collections::HashMap;
+use std::collections::hash_map::Entry;
 use std::hash::{BuildHasherDefault, Hash, Hasher};
 use std::path::{Path, PathBuf};
 
@@ -69,7 +70,9 @@ impl Levels {
 
     /// Applies levels and line suppressions to one line's diagnostics.
     pub fn apply(&self, diagnostics: &mut Vec<Diagnostic>, line_text: &str) {
-        if self.by_code.is_empty() && !self.deny_warnings && !line_text.contains(ALLOW_COMMENT) {
+        if diagnostics.is_empty()
+            || self.by_code.is_empty() && !self.deny_warnings && !line_text.contains(ALLOW_COMMENT)
+        {
             return;
         }
         let allowed = allowed_on_line(line_text);
@@ -170,6 +173,65 @@ pub struct FileLints {
     repeat_limit_noted: bool,
 }
 
+/// What the cross-line rules need to know about one reaction, worked out
+/// without the file's context (so on any thread): hashes, marks, the first
+/// fractional coefficient, and the diagnostics that need no context.
+#[derive(Debug, Clone)]
+pub struct ReactionFacts {
+    /// Hash and span of the reaction's name.
+    label: Option<(u64, Span)>,
+    /// (charge is positive, style as tracked, span) of each marked species, in order.
+    marks: Vec<(bool, MarkStyle, Span)>,
+    /// Hashes of the net stoichiometry, forwards and reversed.
+    repeat: Option<(u64, u64)>,
+    span: Span,
+    /// The first fractional coefficient's span, if any.
+    fractional: Option<Span>,
+    /// Rules that need only the reaction and its host (unmarked defects).
+    local: Vec<Diagnostic>,
+}
+
+impl ReactionFacts {
+    pub fn of(label: Option<(&str, Span)>, reaction: &Reaction, host: Option<&Host>) -> Self {
+        let label = label.map(|(name, span)| {
+            let mut h = fnv();
+            h.write(name.as_bytes());
+            (h.finish(), span)
+        });
+        let mut marks = Vec::new();
+        for_each_species(reaction, &mut |species| {
+            if species.marks == MarkStyle::Unmarked {
+                return;
+            }
+            // Dots have four spellings; primes and crosses three (a star user
+            // writes ASCII primes), so the two are tracked apart.
+            let positive = species.charge > 0;
+            let style = if !positive && species.marks == MarkStyle::Star {
+                MarkStyle::Ascii
+            } else {
+                species.marks
+            };
+            marks.push((positive, style, species.span.clone()));
+        });
+        let fractional = reaction
+            .terms()
+            .find(|(_, t)| !t.coefficient.is_integer())
+            .map(|(_, t)| t.span.clone());
+        let mut local = Vec::new();
+        if let Some(host) = host {
+            implicit_neutral(reaction, host, &mut local);
+        }
+        ReactionFacts {
+            label,
+            marks,
+            repeat: normalized_hashes(reaction),
+            span: reaction.span.clone(),
+            fractional,
+            local,
+        }
+    }
+}
+
 impl FileLints {
     /// Diagnostics for one reaction at `line`, in the context of the file so far.
     pub fn reaction(
@@ -179,29 +241,38 @@ impl FileLints {
         reaction: &Reaction,
         host: Option<&Host>,
     ) -> Vec<Diagnostic> {
+        let name = label.as_ref().map(|(name, _)| *name);
+        let facts = ReactionFacts::of(label.clone(), reaction, host);
+        self.apply(line, name, facts)
+    }
+
+    /// Diagnostics for one reaction at `line` from its facts, in the context
+    /// of the file so far; `name` is the reaction's name as written.
+    pub fn apply(
+        &mut self,
+        line: u32,
+        name: Option<&str>,
+        facts: ReactionFacts,
+    ) -> Vec<Diagnostic> {
         let mut out = Vec::new();
-        if let Some((name, span)) = label {
-            let key = {
-                let mut h = fnv();
-                h.write(name.as_bytes());
-                h.finish()
-            };
-            match self.labels.get(&key) {
-                Some(first) => out.push(
-                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
+        if let Some((key, span)) = facts.label {
+            // One probe of the (large, cache-cold) table per name.
+            match self.labels.entry(key) {
+                Entry::Occupied(first) => out.push(
+                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{}` is already used on line {}", name.unwrap_or_default(), first.get()))
                         .with_help("names identify reactions in models and reports; give this one another name"),
                 ),
-                None => {
-                    self.labels.insert(key, line);
+                Entry::Vacant(slot) => {
+                    slot.insert(line);
                 }
             }
         }
-        self.mark_styles(line, reaction, &mut out);
-        self.repeats(line, reaction, &mut out);
-        self.fractions(reaction, &mut out);
-        if let Some(host) = host {
-            implicit_neutral(reaction, host, &mut out);
+        self.mark_styles(line, facts.marks, &mut out);
+        if let Some(hashes) = facts.repeat {
+            self.repeats(line, hashes, facts.span, &mut out);
         }
+        self.fractions(facts.fractional, &mut out);
+        out.extend(facts.local);
         out
     }
 
@@ -212,43 +283,39 @@ impl FileLints {
         self.labels.contains_key(&h.finish())
     }
 
-    fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        for_each_species(reaction, &mut |species| {
-            if species.marks == MarkStyle::Unmarked {
-                return;
-            }
-            // Dots have four spellings; primes and crosses three (a star user
-            // writes ASCII primes), so the two are tracked apart.
-            let (slot, style) = if species.charge > 0 {
-                (&mut self.dot_style, species.marks)
+    fn mark_styles(
+        &mut self,
+        line: u32,
+        marks: Vec<(bool, MarkStyle, Span)>,
+        out: &mut Vec<Diagnostic>,
+    ) {
+        for (positive, style, span) in marks {
+            let slot = if positive {
+                &mut self.dot_style
             } else {
-                (
-                    &mut self.other_style,
-                    if species.marks == MarkStyle::Star {
-                        MarkStyle::Ascii
-                    } else {
-                        species.marks
-                    },
-                )
+                &mut self.other_style
             };
             match slot {
                 None => *slot = Some((style, line)),
                 Some((first, first_line)) if *first != style => {
                     let (first, first_line) = (*first, *first_line);
                     out.push(
-                        Diagnostic::new(Code::MixedMarks, species.span.clone(), format!("charge marks written in {} style; line {first_line} uses {} style", style_name(style), style_name(first)))
+                        Diagnostic::new(Code::MixedMarks, span, format!("charge marks written in {} style; line {first_line} uses {} style", style_name(style), style_name(first)))
                             .with_help("use one spelling of the marks in a file; `lacuna fmt --write` rewrites them"),
                     );
                 }
                 Some(_) => {}
             }
-        });
+        }
     }
 
-    fn repeats(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        let Some((forward, backward)) = normalized_hashes(reaction) else {
-            return;
-        };
+    fn repeats(
+        &mut self,
+        line: u32,
+        (forward, backward): (u64, u64),
+        span: Span,
+        out: &mut Vec<Diagnostic>,
+    ) {
         let earlier = match (self.seen.get(&forward), self.seen.get(&backward)) {
             (Some(line), _) => Some((*line, "a multiple")),
             (None, Some(line)) => Some((*line, "the reverse")),
@@ -258,7 +325,7 @@ impl FileLints {
             out.push(
                 Diagnostic::new(
                     Code::RepeatedReaction,
-                    reaction.span.clone(),
+                    span,
                     format!("this reaction is {what} of the one on line {first}"),
                 )
                 .with_help(
@@ -273,7 +340,7 @@ impl FileLints {
             self.repeat_limit_noted = true;
             let mut note = Diagnostic::new(
                 Code::RepeatedReaction,
-                reaction.span.clone(),
+                span,
                 format!(
                     "more than {REPEAT_TRACKING_LIMIT} distinct reactions: later repeats are not looked for"
                 ),
@@ -283,14 +350,13 @@ impl FileLints {
         }
     }
 
-    fn fractions(&mut self, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        let fractional = reaction.terms().find(|(_, t)| !t.coefficient.is_integer());
+    fn fractions(&mut self, fractional: Option<Span>, out: &mut Vec<Diagnostic>) {
         match fractional {
             None => self.integer_reactions += 1,
-            Some((_, term)) => {
+            Some(span) => {
                 if self.integer_reactions > self.fractional_reactions {
                     out.push(
-                        Diagnostic::new(Code::FractionalCoefficients, term.span.clone(), "a fractional coefficient in a file that otherwise uses whole numbers")
+                        Diagnostic::new(Code::FractionalCoefficients, span, "a fractional coefficient in a file that otherwise uses whole numbers")
                             .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
                     );
                 }
@@ -360,6 +426,36 @@ impl Hasher for Fnv {
             self.0 = (self.0 ^ u64::from(*b)).wrapping_mul(0x0100_0000_01b3);
         }
     }
+
+    /// Whole words at once (most of what is hashed), mixed with the
+    /// SplitMix64 finaliser: a few cycles instead of eight FNV rounds.
+    fn write_u64(&mut self, n: u64) {
+        let mut z = self.0 ^ n;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        self.0 = z ^ (z >> 31);
+    }
+
+    fn write_usize(&mut self, n: usize) {
+        self.write_u64(n as u64);
+    }
+}
+
+/// Feeds an exact number to a hasher. `Q` values are kept in lowest terms,
+/// so numerator and denominator identify the value (num-rational's own
+/// `Hash` runs Euclid's algorithm to allow for unreduced values).
+fn hash_q(q: Q, h: &mut Fnv) {
+    h.write_i64(*q.numer());
+    h.write_i64(*q.denom());
+}
+
+/// Feeds a formula's atoms, in the order written, to a hasher.
+fn hash_atoms(atoms: &[(u8, Q)], h: &mut Fnv) {
+    h.write_usize(atoms.len());
+    for (z, n) in atoms {
+        h.write_u8(*z);
+        hash_q(*n, h);
+    }
 }
 
 fn fnv() -> Fnv {
@@ -374,7 +470,7 @@ fn hash_species(s: &Species, h: &mut Fnv) {
         Occupant::Hole => h.write_u8(3),
         Occupant::Atoms { formula, .. } => {
             h.write_u8(4);
-            formula.atoms.hash(h);
+            hash_atoms(&formula.atoms, h);
         }
     }
     s.site.hash(h);
@@ -388,9 +484,15 @@ fn entity_hash(term: &Term) -> Option<u64> {
         Entity::Species(s) => hash_species(s, &mut h),
         Entity::Compound(c) => {
             h.write_u8(5);
-            let mut atoms = c.formula.atoms.clone();
-            atoms.sort();
-            atoms.hash(&mut h);
+            // Atoms in any order (`O2Ti` is `TiO2`): combine their hashes
+            // commutatively, which needs no sorted copy.
+            let mut sum = 0u64;
+            for atom in &c.formula.atoms {
+                let mut ah = fnv();
+                hash_atoms(std::slice::from_ref(atom), &mut ah);
+                sum = sum.wrapping_add(ah.finish());
+            }
+            h.write_u64(sum);
             c.phase.hash(&mut h);
         }
         Entity::Associate(a) => {
@@ -401,7 +503,7 @@ fn entity_hash(term: &Term) -> Option<u64> {
                 if let Entity::Species(s) = &part.entity {
                     let mut ph = fnv();
                     hash_species(s, &mut ph);
-                    part.coefficient.hash(&mut ph);
+                    hash_q(part.coefficient, &mut ph);
                     sum = sum.wrapping_add(ph.finish());
                 }
             }
