@@ -155,6 +155,20 @@ impl System {
         }
     }
 
+    /// (Σ_{w_ls > 0} w_ls c_s, Σ_{w_ls < 0} |w_ls| c_s) for one level.
+    fn signed_sums(&self, level: usize, c: &[f64]) -> (f64, f64) {
+        let row = &self.w[level * self.species..(level + 1) * self.species];
+        let (mut positive, mut negative) = (0.0, 0.0);
+        for (w, c) in row.iter().zip(c) {
+            if *w > 0.0 {
+                positive += w * c;
+            } else if *w < 0.0 {
+                negative -= w * c;
+            }
+        }
+        (positive, negative)
+    }
+
     /// ln Σ_{s: sign·w_ls > 0} |w_ls| e^{e_s}, and Σ w² c / Σ |w| c (the
     /// log-derivative), for one level and one sign.
     fn log_sum(&self, level: usize, positive: bool, e: &[f64]) -> (f64, f64) {
@@ -529,28 +543,56 @@ impl System {
         self.exponents(a, y, work);
         ln_c.clear();
         ln_c.extend_from_slice(&work.e);
+        // In the normal range the sums are formed from the concentrations
+        // themselves (one exponential per species); near overflow or
+        // underflow, in logarithms.
+        let largest = work.e.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let direct = largest.is_finite() && largest < 600.0;
+        if direct {
+            work.c.clear();
+            work.c.extend(work.e.iter().map(|e| e.exp()));
+        }
+        let normal = |x: f64| x >= 1e-290;
         let mut charge_residual = 0.0;
         let mut total_residual = 0.0f64;
         for (l, level) in self.levels.iter().enumerate() {
             match level {
                 Level::Charge => {
-                    let (lp, _) = self.log_sum(l, true, &work.e);
-                    let (ln, _) = self.log_sum(l, false, &work.e);
                     let q = ln_targets.get(l).copied().unwrap_or(0.0);
-                    charge_residual = if q == 0.0 {
-                        // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
-                        (0.5 * (lp - ln)).tanh().abs()
-                    } else {
-                        // |P − N − Q| / (P + N + |Q|), scaled to avoid overflow
-                        let top = lp.max(ln).max(q.abs().ln());
-                        let (p, n, q) = ((lp - top).exp(), (ln - top).exp(), q / top.exp());
-                        (p - n - q).abs() / (p + n + q.abs())
+                    let sums = direct
+                        .then(|| self.signed_sums(l, &work.c))
+                        .filter(|(p, n)| normal(*p) && normal(*n));
+                    charge_residual = match sums {
+                        // |P − N − Q| / (P + N + |Q|)
+                        Some((p, n)) => (p - n - q).abs() / (p + n + q.abs()),
+                        None => {
+                            let (lp, _) = self.log_sum(l, true, &work.e);
+                            let (ln, _) = self.log_sum(l, false, &work.e);
+                            if q == 0.0 {
+                                // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
+                                (0.5 * (lp - ln)).tanh().abs()
+                            } else {
+                                // The same, scaled to avoid overflow.
+                                let top = lp.max(ln).max(q.abs().ln());
+                                let (p, n, q) = ((lp - top).exp(), (ln - top).exp(), q / top.exp());
+                                (p - n - q).abs() / (p + n + q.abs())
+                            }
+                        }
                     };
                 }
                 Level::Total(_) => {
-                    let (ls, _) = self.log_sum(l, true, &work.e);
                     let target = ln_targets.get(l).copied().unwrap_or(0.0);
-                    total_residual = total_residual.max((ls - target).exp_m1().abs());
+                    let sum = direct
+                        .then(|| self.signed_sums(l, &work.c).0)
+                        .filter(|s| normal(*s));
+                    let residual = match sum {
+                        Some(s) => (s / target.exp() - 1.0).abs(),
+                        None => {
+                            let (ls, _) = self.log_sum(l, true, &work.e);
+                            (ls - target).exp_m1().abs()
+                        }
+                    };
+                    total_residual = total_residual.max(residual);
                 }
             }
         }
