@@ -113,7 +113,7 @@ fi
 echo "check: check.py and lacuna agree: $lacuna_failed of $PY_LINES sample reactions fail" >&2
 sympy_out=$("$PY" tests/peers/balance_sympy.py tests/peers/balance.kvr --lacuna "$LACUNA")
 scipy_out=$("$PY" tests/peers/equilibrium_scipy.py tests/peers/model.kvr --lacuna "$LACUNA")
-grep '^check:' <<<"$sympy_out$(printf '\n')$scipy_out" >&2
+printf '%s\n' "$sympy_out" "$scipy_out" >&2
 
 say "timing check (whole processes, $RUNS runs each)"
 t_wc=$(measure "$RUNS" wc -l "$WORK/million.kvr")
@@ -121,8 +121,11 @@ t_check=$(measure "$RUNS" "$LACUNA" "${CHECK[@]}" "$WORK/million.kvr")
 t_python=$(measure 3 "$PY" tests/peers/check.py "$WORK/sample.kvr")
 
 say "timing balance and equilibrium (in-process loops)"
-rust_balance=$(cargo bench --quiet --bench balance 2>/dev/null | tee /dev/stderr | sed -n 's/^bench: balance.ns_per_reaction = //p')
-rust_equilibrium=$(cargo bench --quiet --bench equilibrium 2>/dev/null | tee /dev/stderr | sed -n 's/^bench: equilibrium.ns_per_point = //p')
+balance_out=$(cargo bench --quiet --bench balance 2>/dev/null)
+equilibrium_out=$(cargo bench --quiet --bench equilibrium 2>/dev/null)
+printf '%s\n' "$balance_out" "$equilibrium_out" >&2
+rust_balance=$(sed -n 's/^bench: balance.ns_per_reaction = //p' <<<"$balance_out")
+rust_equilibrium=$(sed -n 's/^bench: equilibrium.ns_per_point = //p' <<<"$equilibrium_out")
 sympy_balance=$(sed -n 's/^peer: balance.ns_per_reaction = //p' <<<"$sympy_out")
 scipy_equilibrium=$(sed -n 's/^peer: equilibrium.ns_per_point = //p' <<<"$scipy_out")
 
