@@ -931,4 +931,41 @@ mod tests {
             assert_eq!(run(text, false), run(text, true));
         }
     }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(24))]
+
+        /// Any mix of lines, host changes and stray bytes: the chunked check
+        /// reports what the line-by-line one does.
+        #[test]
+        fn chunked_and_line_by_line_agree_on_any_file(
+            picks in proptest::collection::vec((0usize..14, proptest::prelude::any::<u8>()), 0..900)
+        ) {
+            const PIECES: [&[u8]; 14] = [
+                b"host ZrO2",
+                b"host TiO2",
+                b"host Q9",
+                b"  host  CeO2  # c",
+                b"hostess: nil -> e' + h.",
+                b"r: O_O -> V_O.. + 2e' + 1/2 O2(g)",
+                b"r: Y2O3 -> 2Y_Zr' + 3O_O + V_O.",
+                b"nil -> V_Zr'''' + 2V_O",
+                br"\mathrm{O}_{\mathrm{O}} \rightarrow V_{O}^{\bullet\bullet} + 2e'",
+                b"K red = 1e-20",
+                b"",
+                b"# comment",
+                b"O_O -> (",
+                b"\xe2\x86",
+            ];
+            let mut text = Vec::new();
+            for (piece, byte) in &picks {
+                text.extend_from_slice(PIECES[*piece]);
+                if *byte < 8 {
+                    text.push(*byte | 0x80);
+                }
+                text.extend_from_slice(if *byte % 7 == 0 { b"\r\n" } else { b"\n" });
+            }
+            proptest::prop_assert_eq!(run(&text, false), run(&text, true));
+        }
+    }
 }
