@@ -3,7 +3,9 @@
 //! In: named sources (files, stdin, inline text) and a default host. Out:
 //! one `ReactionReport` per reaction and one call per problem on a
 //! non-reaction line, in source order, then a `Summary`. Memory does not grow
-//! with the length of a file: each line is read, checked, reported and dropped.
+//! with the length of a file: each line is read, checked, reported and dropped
+//! (`check_reader`), or each chunk of lines (`check_reader_parallel`, which
+//! parses and checks a file's lines on all cores and reports them in order).
 
 use crate::check::{Verdict, check_reaction};
 use crate::diagnostic::{Code, Diagnostic, Severity};
