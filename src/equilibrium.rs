@@ -67,6 +67,8 @@ pub struct System {
 pub struct Work {
     e: Vec<f64>,
     c: Vec<f64>,
+    /// The start value of a solve, to go back to.
+    start: Vec<f64>,
     /// Evaluations of the concentrations in the last solve.
     pub evaluations: u32,
 }
@@ -151,6 +153,20 @@ impl System {
                 *e += wl * yl;
             }
         }
+    }
+
+    /// (Σ_{w_ls > 0} w_ls c_s, Σ_{w_ls < 0} |w_ls| c_s) for one level.
+    fn signed_sums(&self, level: usize, c: &[f64]) -> (f64, f64) {
+        let row = &self.w[level * self.species..(level + 1) * self.species];
+        let (mut positive, mut negative) = (0.0, 0.0);
+        for (w, c) in row.iter().zip(c) {
+            if *w > 0.0 {
+                positive += w * c;
+            } else if *w < 0.0 {
+                negative -= w * c;
+            }
+        }
+        (positive, negative)
     }
 
     /// ln Σ_{s: sign·w_ls > 0} |w_ls| e^{e_s}, and Σ w² c / Σ |w| c (the
@@ -377,31 +393,206 @@ impl System {
         } else {
             self.solve_level(self.levels.len() - 1, a, ln_targets, y, work)
         };
+        self.conclude(a, ln_targets, y, ln_c, work, ok)
+    }
+
+    /// Like `solve`, for a start value `y` predicted from neighbouring
+    /// solutions (a sweep): first plain Newton steps on all levels at once,
+    /// which from a close start converge in two or three evaluations; if
+    /// they do not reach the tolerance within a few steps, or step far, the
+    /// nested bracketed searches of `solve` start again from the prediction.
+    /// The verdict is checked the same way either way.
+    pub fn solve_predicted(
+        &self,
+        a: &[f64],
+        ln_targets: &[f64],
+        y: &mut [f64],
+        ln_c: &mut Vec<f64>,
+        work: &mut Work,
+    ) -> Outcome {
+        work.evaluations = 0;
+        work.start.clear();
+        work.start.extend_from_slice(y);
+        if self.newton(a, ln_targets, y, work) {
+            let outcome = self.conclude(a, ln_targets, y, ln_c, work, true);
+            if outcome.converged {
+                return outcome;
+            }
+        }
+        y.copy_from_slice(&work.start);
+        self.solve(a, ln_targets, y, ln_c, work)
+    }
+
+    /// Newton's method on Φ(y) = Σ_s c_s − Σ_t T_t y_t, whose gradient is
+    /// the constraints (Σ_s w_ls c_s − T_l) and whose Hessian is
+    /// Σ_s w_s w_sᵀ c_s. True when every constraint is within the inner
+    /// tolerance at the final `y`, or the last step was too short to
+    /// matter; the caller checks the residuals either way.
+    fn newton(&self, a: &[f64], ln_targets: &[f64], y: &mut [f64], work: &mut Work) -> bool {
+        const STEPS: usize = 6;
+        /// A longer step means the prediction was poor: leave it to the searches.
+        const LONGEST_STEP: f64 = 2.0;
+        const SHORT_STEP: f64 = 1e-8;
+        let n = self.levels.len();
+        if n == 0 || n > 8 || y.len() != n {
+            return false;
+        }
+        // Totals count with non-negative weights (see `residual`); anything
+        // else is left to the searches.
+        for (l, level) in self.levels.iter().enumerate() {
+            let row = &self.w[l * self.species..(l + 1) * self.species];
+            if matches!(level, Level::Total(_)) && row.iter().any(|w| *w < 0.0) {
+                return false;
+            }
+        }
+        for _ in 0..STEPS {
+            self.exponents(a, y, work);
+            work.c.clear();
+            work.c.extend(work.e.iter().map(|e| e.exp()));
+            if work.c.iter().any(|c| !c.is_finite()) {
+                return false;
+            }
+            // Gradient, with the scale each residual is measured against.
+            let mut g = [0.0f64; 8];
+            let mut converged = true;
+            for (l, level) in self.levels.iter().enumerate() {
+                let row = &self.w[l * self.species..(l + 1) * self.species];
+                let (mut sum, mut scale) = (0.0, 0.0);
+                for (w, c) in row.iter().zip(&work.c) {
+                    sum += w * c;
+                    scale += w.abs() * c;
+                }
+                let target = match level {
+                    Level::Charge => ln_targets.get(l).copied().unwrap_or(0.0),
+                    Level::Total(_) => ln_targets.get(l).map_or(1.0, |t| t.exp()),
+                };
+                g[l] = sum - target;
+                let relative = g[l].abs() / (scale + target.abs());
+                if relative.is_nan() || relative > INNER_TOLERANCE {
+                    converged = false;
+                }
+            }
+            if converged {
+                return true;
+            }
+            // Hessian, then H·dy = −g by elimination with partial pivoting.
+            let mut m = [[0.0f64; 9]; 8];
+            let species = self.species;
+            for (i, row) in m.iter_mut().enumerate().take(n) {
+                let wi = &self.w[i * species..(i + 1) * species];
+                for (j, entry) in row.iter_mut().enumerate().take(n) {
+                    let wj = &self.w[j * species..(j + 1) * species];
+                    *entry = wi
+                        .iter()
+                        .zip(wj)
+                        .zip(&work.c)
+                        .map(|((a, b), c)| a * b * c)
+                        .sum();
+                }
+                row[n] = -g[i];
+            }
+            for col in 0..n {
+                let pivot = (col..n)
+                    .max_by(|&p, &q| m[p][col].abs().total_cmp(&m[q][col].abs()))
+                    .unwrap_or(col);
+                m.swap(col, pivot);
+                let p = m[col][col];
+                if p == 0.0 || !p.is_finite() {
+                    return false;
+                }
+                let pivot_row = m[col];
+                for (r, row) in m.iter_mut().enumerate().take(n) {
+                    if r != col {
+                        let f = row[col] / p;
+                        for (entry, pivot_entry) in
+                            row.iter_mut().zip(pivot_row.iter()).take(n + 1).skip(col)
+                        {
+                            *entry -= f * pivot_entry;
+                        }
+                    }
+                }
+            }
+            let mut longest = 0.0f64;
+            for (l, yl) in y.iter_mut().enumerate() {
+                let step = m[l][n] / m[l][l];
+                if step.is_nan() || step.abs() > LONGEST_STEP {
+                    return false;
+                }
+                *yl += step;
+                longest = longest.max(step.abs());
+            }
+            // Convergence is quadratic: after a step this short the
+            // residuals are at rounding level (the caller checks them).
+            if longest <= SHORT_STEP {
+                return true;
+            }
+        }
+        false
+    }
+
+    /// The final evaluation at `y` and the verdict on it.
+    fn conclude(
+        &self,
+        a: &[f64],
+        ln_targets: &[f64],
+        y: &[f64],
+        ln_c: &mut Vec<f64>,
+        work: &mut Work,
+        ok: bool,
+    ) -> Outcome {
         self.exponents(a, y, work);
         ln_c.clear();
         ln_c.extend_from_slice(&work.e);
+        // In the normal range the sums are formed from the concentrations
+        // themselves (one exponential per species); near overflow or
+        // underflow, in logarithms.
+        let largest = work.e.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let direct = largest.is_finite() && largest < 600.0;
+        if direct {
+            work.c.clear();
+            work.c.extend(work.e.iter().map(|e| e.exp()));
+        }
+        let normal = |x: f64| x >= 1e-290;
         let mut charge_residual = 0.0;
         let mut total_residual = 0.0f64;
         for (l, level) in self.levels.iter().enumerate() {
             match level {
                 Level::Charge => {
-                    let (lp, _) = self.log_sum(l, true, &work.e);
-                    let (ln, _) = self.log_sum(l, false, &work.e);
                     let q = ln_targets.get(l).copied().unwrap_or(0.0);
-                    charge_residual = if q == 0.0 {
-                        // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
-                        (0.5 * (lp - ln)).tanh().abs()
-                    } else {
-                        // |P − N − Q| / (P + N + |Q|), scaled to avoid overflow
-                        let top = lp.max(ln).max(q.abs().ln());
-                        let (p, n, q) = ((lp - top).exp(), (ln - top).exp(), q / top.exp());
-                        (p - n - q).abs() / (p + n + q.abs())
+                    let sums = direct
+                        .then(|| self.signed_sums(l, &work.c))
+                        .filter(|(p, n)| normal(*p) && normal(*n));
+                    charge_residual = match sums {
+                        // |P − N − Q| / (P + N + |Q|)
+                        Some((p, n)) => (p - n - q).abs() / (p + n + q.abs()),
+                        None => {
+                            let (lp, _) = self.log_sum(l, true, &work.e);
+                            let (ln, _) = self.log_sum(l, false, &work.e);
+                            if q == 0.0 {
+                                // |P − N| / (P + N) = |tanh((ln P − ln N)/2)|
+                                (0.5 * (lp - ln)).tanh().abs()
+                            } else {
+                                // The same, scaled to avoid overflow.
+                                let top = lp.max(ln).max(q.abs().ln());
+                                let (p, n, q) = ((lp - top).exp(), (ln - top).exp(), q / top.exp());
+                                (p - n - q).abs() / (p + n + q.abs())
+                            }
+                        }
                     };
                 }
                 Level::Total(_) => {
-                    let (ls, _) = self.log_sum(l, true, &work.e);
                     let target = ln_targets.get(l).copied().unwrap_or(0.0);
-                    total_residual = total_residual.max((ls - target).exp_m1().abs());
+                    let sum = direct
+                        .then(|| self.signed_sums(l, &work.c).0)
+                        .filter(|s| normal(*s));
+                    let residual = match sum {
+                        Some(s) => (s / target.exp() - 1.0).abs(),
+                        None => {
+                            let (ls, _) = self.log_sum(l, true, &work.e);
+                            (ls - target).exp_m1().abs()
+                        }
+                    };
+                    total_residual = total_residual.max(residual);
                 }
             }
         }
@@ -534,7 +725,11 @@ pub fn po2_sweep(model: &Model, t: f64, po2s: &[f64]) -> Result<Vec<Point>, Diag
             *ai = b + s * x;
         }
         predict(&history, x, &mut y);
-        let mut outcome = system.solve(&a, &targets, &mut y, &mut ln_c, &mut work);
+        let mut outcome = if history.is_empty() {
+            system.solve(&a, &targets, &mut y, &mut ln_c, &mut work)
+        } else {
+            system.solve_predicted(&a, &targets, &mut y, &mut ln_c, &mut work)
+        };
         if !outcome.converged {
             // A cold start from zero before giving up on the point.
             y.iter_mut().for_each(|v| *v = 0.0);
@@ -576,7 +771,11 @@ pub fn temperature_sweep(
             *ai = b + s * x;
         }
         predict(&history, 1.0 / t, &mut y);
-        let mut outcome = system.solve(&a, &targets, &mut y, &mut ln_c, &mut work);
+        let mut outcome = if history.is_empty() {
+            system.solve(&a, &targets, &mut y, &mut ln_c, &mut work)
+        } else {
+            system.solve_predicted(&a, &targets, &mut y, &mut ln_c, &mut work)
+        };
         if !outcome.converged {
             y.iter_mut().for_each(|v| *v = 0.0);
             outcome = system.solve(&a, &targets, &mut y, &mut ln_c, &mut work);

@@ -8,9 +8,10 @@
 
 use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::host::{Host, SiteLookup};
-use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Species, Term};
+use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Span, Species, Term};
 use crate::number::Q;
 use std::collections::HashMap;
+use std::collections::hash_map::Entry;
 use std::hash::{BuildHasherDefault, Hash, Hasher};
 use std::path::{Path, PathBuf};
 
@@ -69,7 +70,9 @@ impl Levels {
 
     /// Applies levels and line suppressions to one line's diagnostics.
     pub fn apply(&self, diagnostics: &mut Vec<Diagnostic>, line_text: &str) {
-        if self.by_code.is_empty() && !self.deny_warnings && !line_text.contains(ALLOW_COMMENT) {
+        if diagnostics.is_empty()
+            || self.by_code.is_empty() && !self.deny_warnings && !line_text.contains(ALLOW_COMMENT)
+        {
             return;
         }
         let allowed = allowed_on_line(line_text);
@@ -164,12 +167,76 @@ pub struct FileLints {
     other_style: Option<(MarkStyle, u32)>,
     seen: HashMap<u64, u32, KeyIsHash>,
     /// Names seen so far, by hash (bounded memory on huge files).
-    labels: HashMap<u64, u32, KeyIsHash>,
+    labels: HashMap<NameKey, u32, KeyIsHash>,
     /// Names used by model lines: (line, line text, span of the name).
-    references: Vec<(u32, String, std::ops::Range<usize>)>,
+    references: Vec<(u32, String, Span)>,
     integer_reactions: u32,
     fractional_reactions: u32,
     repeat_limit_noted: bool,
+}
+
+/// What the cross-line rules need to know about one reaction, worked out
+/// without the file's context (so on any thread): hashes, marks, the first
+/// fractional coefficient, and the diagnostics that need no context.
+#[derive(Debug, Clone)]
+pub struct ReactionFacts {
+    /// Hash and span of the reaction's name.
+    label: Option<(u64, Span)>,
+    /// (charge is positive, style as tracked, span) of each marked species, in order.
+    marks: Vec<(bool, MarkStyle, Span)>,
+    /// Hashes of the net stoichiometry, forwards and reversed.
+    repeat: Option<(u64, u64)>,
+    span: Span,
+    /// The first fractional coefficient's span, if any.
+    fractional: Option<Span>,
+    /// Rules that need only the reaction and its host (unmarked defects).
+    local: Vec<Diagnostic>,
+}
+
+impl ReactionFacts {
+    pub fn of(label: Option<(&str, Span)>, reaction: &Reaction, host: Option<&Host>) -> Self {
+        let label = label.map(|(name, span)| {
+            let mut h = fnv();
+            h.write(name.as_bytes());
+            (h.finish(), span)
+        });
+        let mut marks = Vec::new();
+        for_each_species(reaction, &mut |species| {
+            if species.marks == MarkStyle::Unmarked {
+                return;
+            }
+            // Dots have four spellings; primes and crosses three (a star user
+            // writes ASCII primes), so the two are tracked apart.
+            let positive = species.charge > 0;
+            let style = if !positive && species.marks == MarkStyle::Star {
+                MarkStyle::Ascii
+            } else {
+                species.marks
+            };
+            marks.push((positive, style, species.span.clone()));
+        });
+        // Gases are conventionally fractional (`1/2 O2(g)`), so only the
+        // condensed species count.
+        let fractional = reaction
+            .terms()
+            .find(|(_, t)| {
+                !t.coefficient.is_integer()
+                    && !matches!(&t.entity, Entity::Compound(c) if c.phase == Some(crate::notation::Phase::Gas))
+            })
+            .map(|(_, t)| t.span.clone());
+        let mut local = Vec::new();
+        if let Some(host) = host {
+            implicit_neutral(reaction, host, &mut local);
+        }
+        ReactionFacts {
+            label,
+            marks,
+            repeat: normalized_hashes(reaction),
+            span: reaction.span.clone(),
+            fractional,
+            local,
+        }
+    }
 }
 
 impl FileLints {
@@ -181,34 +248,44 @@ impl FileLints {
         reaction: &Reaction,
         host: Option<&Host>,
     ) -> Vec<Diagnostic> {
+        let name = label.as_ref().map(|(name, _)| *name);
+        let facts = ReactionFacts::of(label.clone(), reaction, host);
+        self.apply(line, name, facts)
+    }
+
+    /// Diagnostics for one reaction at `line` from its facts, in the context
+    /// of the file so far; `name` is the reaction's name as written.
+    pub fn apply(
+        &mut self,
+        line: u32,
+        name: Option<&str>,
+        facts: ReactionFacts,
+    ) -> Vec<Diagnostic> {
         let mut out = Vec::new();
-        if let Some((name, span)) = label {
-            let key = {
-                let mut h = fnv();
-                h.write(name.as_bytes());
-                h.finish()
-            };
-            match self.labels.get(&key) {
-                Some(first) => out.push(
-                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
+        if let Some((key, span)) = facts.label {
+            // One probe of the (large, cache-cold) table per name.
+            match self.labels.entry(NameKey::new(key)) {
+                Entry::Occupied(first) => out.push(
+                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{}` is already used on line {}", name.unwrap_or_default(), first.get()))
                         .with_help("names identify reactions in models and reports; give this one another name"),
                 ),
-                None => {
-                    self.labels.insert(key, line);
+                Entry::Vacant(slot) => {
+                    slot.insert(line);
                 }
             }
         }
-        self.mark_styles(line, reaction, &mut out);
-        self.repeats(line, reaction, &mut out);
-        self.fractions(reaction, &mut out);
-        if let Some(host) = host {
-            implicit_neutral(reaction, host, &mut out);
+        self.mark_styles(line, facts.marks, &mut out);
+        if let Some(hashes) = facts.repeat {
+            self.repeats(line, hashes, facts.span, &mut out);
         }
+        self.fractions(facts.fractional, &mut out);
+        out.extend(facts.local);
         out
     }
 
+    /// The names declared so far, for rules that check references.
     /// Notes a model line's use of a reaction name, resolved at the end.
-    pub fn reference(&mut self, line: u32, line_text: &str, name: std::ops::Range<usize>) {
+    pub fn reference(&mut self, line: u32, line_text: &str, name: Span) {
         self.references.push((line, line_text.to_string(), name));
     }
 
@@ -240,50 +317,45 @@ impl FileLints {
             .collect()
     }
 
-    /// The names declared so far, for rules that check references.
     pub fn knows_label(&self, name: &str) -> bool {
         let mut h = fnv();
         h.write(name.as_bytes());
-        self.labels.contains_key(&h.finish())
+        self.labels.contains_key(&NameKey::new(h.finish()))
     }
 
-    fn mark_styles(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        for_each_species(reaction, &mut |species| {
-            if species.marks == MarkStyle::Unmarked {
-                return;
-            }
-            // Dots have four spellings; primes and crosses three (a star user
-            // writes ASCII primes), so the two are tracked apart.
-            let (slot, style) = if species.charge > 0 {
-                (&mut self.dot_style, species.marks)
+    fn mark_styles(
+        &mut self,
+        line: u32,
+        marks: Vec<(bool, MarkStyle, Span)>,
+        out: &mut Vec<Diagnostic>,
+    ) {
+        for (positive, style, span) in marks {
+            let slot = if positive {
+                &mut self.dot_style
             } else {
-                (
-                    &mut self.other_style,
-                    if species.marks == MarkStyle::Star {
-                        MarkStyle::Ascii
-                    } else {
-                        species.marks
-                    },
-                )
+                &mut self.other_style
             };
             match slot {
                 None => *slot = Some((style, line)),
                 Some((first, first_line)) if *first != style => {
                     let (first, first_line) = (*first, *first_line);
                     out.push(
-                        Diagnostic::new(Code::MixedMarks, species.span.clone(), format!("charge marks written in {} style; line {first_line} uses {} style", style_name(style), style_name(first)))
+                        Diagnostic::new(Code::MixedMarks, span, format!("charge marks written in {} style; line {first_line} uses {} style", style_name(style), style_name(first)))
                             .with_help("use one spelling of the marks in a file; `lacuna fmt --write` rewrites them"),
                     );
                 }
                 Some(_) => {}
             }
-        });
+        }
     }
 
-    fn repeats(&mut self, line: u32, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        let Some((forward, backward)) = normalized_hashes(reaction) else {
-            return;
-        };
+    fn repeats(
+        &mut self,
+        line: u32,
+        (forward, backward): (u64, u64),
+        span: Span,
+        out: &mut Vec<Diagnostic>,
+    ) {
         let earlier = match (self.seen.get(&forward), self.seen.get(&backward)) {
             (Some(line), _) => Some((*line, "a multiple")),
             (None, Some(line)) => Some((*line, "the reverse")),
@@ -293,7 +365,7 @@ impl FileLints {
             out.push(
                 Diagnostic::new(
                     Code::RepeatedReaction,
-                    reaction.span.clone(),
+                    span,
                     format!("this reaction is {what} of the one on line {first}"),
                 )
                 .with_help(
@@ -308,7 +380,7 @@ impl FileLints {
             self.repeat_limit_noted = true;
             let mut note = Diagnostic::new(
                 Code::RepeatedReaction,
-                reaction.span.clone(),
+                span,
                 format!(
                     "more than {REPEAT_TRACKING_LIMIT} distinct reactions: later repeats are not looked for"
                 ),
@@ -318,18 +390,13 @@ impl FileLints {
         }
     }
 
-    fn fractions(&mut self, reaction: &Reaction, out: &mut Vec<Diagnostic>) {
-        // Gases are conventionally fractional (`1/2 O2(g)`), so only the
-        // condensed species count.
-        let fractional = reaction.terms().find(|(_, t)| {
-            !t.coefficient.is_integer() && !matches!(&t.entity, Entity::Compound(c) if c.phase == Some(crate::notation::Phase::Gas))
-        });
+    fn fractions(&mut self, fractional: Option<Span>, out: &mut Vec<Diagnostic>) {
         match fractional {
             None => self.integer_reactions += 1,
-            Some((_, term)) => {
+            Some(span) => {
                 if self.integer_reactions > self.fractional_reactions {
                     out.push(
-                        Diagnostic::new(Code::FractionalCoefficients, term.span.clone(), "a fractional coefficient on a condensed species in a file that otherwise uses whole numbers")
+                        Diagnostic::new(Code::FractionalCoefficients, span, "a fractional coefficient on a condensed species in a file that otherwise uses whole numbers")
                             .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
                     );
                 }
@@ -360,6 +427,24 @@ fn for_each_species<'a>(reaction: &'a Reaction, f: &mut dyn FnMut(&'a Species)) 
     }
     for (_, t) in reaction.terms() {
         visit(t, f);
+    }
+}
+
+/// A name's 64-bit hash stored as two halves: with the line number beside
+/// it a table entry takes 12 bytes instead of 16, which matters for files
+/// with a million names.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct NameKey([u32; 2]);
+
+impl NameKey {
+    fn new(hash: u64) -> NameKey {
+        NameKey([(hash >> 32) as u32, hash as u32])
+    }
+}
+
+impl Hash for NameKey {
+    fn hash<H: Hasher>(&self, state: &mut H) {
+        state.write_u64(u64::from(self.0[0]) << 32 | u64::from(self.0[1]));
     }
 }
 
@@ -399,6 +484,36 @@ impl Hasher for Fnv {
             self.0 = (self.0 ^ u64::from(*b)).wrapping_mul(0x0100_0000_01b3);
         }
     }
+
+    /// Whole words at once (most of what is hashed), mixed with the
+    /// SplitMix64 finaliser: a few cycles instead of eight FNV rounds.
+    fn write_u64(&mut self, n: u64) {
+        let mut z = self.0 ^ n;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        self.0 = z ^ (z >> 31);
+    }
+
+    fn write_usize(&mut self, n: usize) {
+        self.write_u64(n as u64);
+    }
+}
+
+/// Feeds an exact number to a hasher. `Q` values are kept in lowest terms,
+/// so numerator and denominator identify the value (num-rational's own
+/// `Hash` runs Euclid's algorithm to allow for unreduced values).
+fn hash_q(q: Q, h: &mut Fnv) {
+    h.write_i64(*q.numer());
+    h.write_i64(*q.denom());
+}
+
+/// Feeds a formula's atoms, in the order written, to a hasher.
+fn hash_atoms(atoms: &[(u8, Q)], h: &mut Fnv) {
+    h.write_usize(atoms.len());
+    for (z, n) in atoms {
+        h.write_u8(*z);
+        hash_q(*n, h);
+    }
 }
 
 fn fnv() -> Fnv {
@@ -413,7 +528,7 @@ fn hash_species(s: &Species, h: &mut Fnv) {
         Occupant::Hole => h.write_u8(3),
         Occupant::Atoms { formula, .. } => {
             h.write_u8(4);
-            formula.atoms.hash(h);
+            hash_atoms(&formula.atoms, h);
         }
     }
     s.site.hash(h);
@@ -427,9 +542,15 @@ fn entity_hash(term: &Term) -> Option<u64> {
         Entity::Species(s) => hash_species(s, &mut h),
         Entity::Compound(c) => {
             h.write_u8(5);
-            let mut atoms = c.formula.atoms.clone();
-            atoms.sort();
-            atoms.hash(&mut h);
+            // Atoms in any order (`O2Ti` is `TiO2`): combine their hashes
+            // commutatively, which needs no sorted copy.
+            let mut sum = 0u64;
+            for atom in &c.formula.atoms {
+                let mut ah = fnv();
+                hash_atoms(std::slice::from_ref(atom), &mut ah);
+                sum = sum.wrapping_add(ah.finish());
+            }
+            h.write_u64(sum);
             c.phase.hash(&mut h);
         }
         Entity::Associate(a) => {
@@ -440,7 +561,7 @@ fn entity_hash(term: &Term) -> Option<u64> {
                 if let Entity::Species(s) = &part.entity {
                     let mut ph = fnv();
                     hash_species(s, &mut ph);
-                    part.coefficient.hash(&mut ph);
+                    hash_q(part.coefficient, &mut ph);
                     sum = sum.wrapping_add(ph.finish());
                 }
             }
@@ -589,18 +710,31 @@ mod tests {
     }
 
     #[test]
+    fn fractions_in_an_integer_file() {
+        let found = lint(
+            "ZrO2",
+            &[
+                "nil -> e' + h.",
+                "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
+                "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+                "1/2 CaO -> 1/2 Ca_Zr'' + 1/2 O_O + 1/2 V_O..",
+            ],
+        );
+        // A half O2(g) is the convention; half a formula unit of CaO is not.
+        assert_eq!(found, vec![(4, "L505")]);
+    }
+
+    #[test]
     fn reverses_are_told_from_multiples() {
         let host = Host::from_spec("ZrO2").expect("host");
         let mut lints = FileLints::default();
         let mut messages = Vec::new();
-        for (i, text) in [
+        let lines = [
             "O_O -> V_O.. + 2e' + 1/2 O2(g)",
             "2O_O -> 2V_O.. + 4e' + O2(g)",
             "V_O.. + 2e' + 1/2 O2(g) -> O_O",
-        ]
-        .iter()
-        .enumerate()
-        {
+        ];
+        for (i, text) in lines.iter().enumerate() {
             let (reaction, _) = parse_reaction(text, 0..text.len());
             for d in lints.reaction(i as u32 + 1, None, &reaction.expect("parses"), Some(&host)) {
                 messages.push(d.message);
@@ -613,21 +747,6 @@ mod tests {
                 "this reaction is the reverse of the one on line 1"
             ]
         );
-    }
-
-    #[test]
-    fn fractions_in_an_integer_file() {
-        let found = lint(
-            "ZrO2",
-            &[
-                "nil -> e' + h.",
-                "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
-                "O_O -> V_O.. + 2e' + 1/2 O2(g)",
-                "1/2 CaO -> 1/2 Ca_Zr'' + 1/2 O_O + 1/2 V_O..",
-            ],
-        );
-        // A half O2(g) is the convention; half a formula unit of Y2O3 is not.
-        assert_eq!(found, vec![(4, "L505")]);
     }
 
     #[test]

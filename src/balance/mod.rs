@@ -454,7 +454,11 @@ impl<'r> System<'r> {
         }
         let mut laws = Vec::new();
         let mut rows: Vec<Vec<Q>> = Vec::new();
-        let sign = |u: &Unknown<'_>| Q::from_integer(u.side.sign());
+        // Negation, not multiplication by −1: no gcd work.
+        let signed = |u: &Unknown<'_>, q: Q| match u.side {
+            Side::Left => -q,
+            Side::Right => q,
+        };
         let mut seen: Vec<u8> = Vec::new();
         for u in &unknowns {
             for (z, _) in &u.content.elements {
@@ -468,7 +472,7 @@ impl<'r> System<'r> {
             rows.push(
                 unknowns
                     .iter()
-                    .map(|u| sign(u) * u.content.count(z))
+                    .map(|u| signed(u, u.content.count(z)))
                     .collect(),
             );
         }
@@ -476,7 +480,7 @@ impl<'r> System<'r> {
         rows.push(
             unknowns
                 .iter()
-                .map(|u| sign(u) * u.content.charge)
+                .map(|u| signed(u, u.content.charge))
                 .collect(),
         );
         if let Some(host) = host {
@@ -488,7 +492,7 @@ impl<'r> System<'r> {
                         .map(|u| {
                             let s0 = u.content.sites.first().copied().unwrap_or_default();
                             let sk = u.content.sites.get(k).copied().unwrap_or_default();
-                            sign(u) * (first.count * sk - sub.count * s0)
+                            signed(u, first.count * sk - sub.count * s0)
                         })
                         .collect();
                     laws.push(Law::Sites);
@@ -626,14 +630,16 @@ impl<'r> System<'r> {
     fn unique(&self, v: &[Q], scalable: bool) -> Outcome {
         let mut diagnostics = Vec::new();
         for (u, c) in self.unknowns.iter().zip(v) {
-            let shown = render_term(&plain_term(u.term), Style::Unicode);
+            // Rendered only for a message: most coefficients need none.
+            let shown = || render_term(&plain_term(u.term), Style::Unicode);
             if *c < Q::from_integer(0) {
                 diagnostics.push(
                     Diagnostic::new(
                         Code::OtherSide,
                         entity_span(u.term),
                         format!(
-                            "{shown} would need the coefficient {} on the {} side: it belongs on the {} side",
+                            "{} would need the coefficient {} on the {} side: it belongs on the {} side",
+                            shown(),
                             signed(*c),
                             u.side.as_str(),
                             u.side.other().as_str()
@@ -646,7 +652,7 @@ impl<'r> System<'r> {
                     Diagnostic::new(
                         Code::NoPart,
                         entity_span(u.term),
-                        format!("{shown} takes no part: its coefficient comes out zero"),
+                        format!("{} takes no part: its coefficient comes out zero", shown()),
                     )
                     .with_help("drop it, or add the species it should pair with"),
                 );

@@ -95,7 +95,7 @@ pub fn run(args: &CheckArgs) -> ExitCode {
             check_in_parallel(&mut checker, &files, host.as_ref(), &levels, keep_passing)
                 .map(|failed| io_failed |= failed)
         } else {
-            check_file(&mut checker, path)
+            check_file(&mut checker, path, true)
         };
         if let Err(e) = result {
             if e.kind() == io::ErrorKind::BrokenPipe {
@@ -126,12 +126,17 @@ pub fn run(args: &CheckArgs) -> ExitCode {
     }
 }
 
-fn check_file(checker: &mut Checker<'_>, path: &Path) -> io::Result<()> {
+/// Checks one file; `parallel` spreads its lines over the cores (for a file
+/// named alone; files of a folder are already checked side by side).
+fn check_file(checker: &mut Checker<'_>, path: &Path, parallel: bool) -> io::Result<()> {
     let file = File::open(path)?;
-    checker.check_reader(
-        &path.display().to_string(),
-        BufReader::with_capacity(1 << 16, file),
-    )
+    let reader = BufReader::with_capacity(1 << 16, file);
+    let name = path.display().to_string();
+    if parallel {
+        checker.check_reader_parallel(&name, reader)
+    } else {
+        checker.check_reader(&name, reader)
+    }
 }
 
 /// Rule levels: the config file (given, or `lacuna.toml` found upwards from
@@ -217,7 +222,7 @@ fn check_in_parallel(
                 };
                 let mut local =
                     Checker::new(host.cloned(), &mut recording).with_levels(levels.clone());
-                let error = check_file(&mut local, path)
+                let error = check_file(&mut local, path, false)
                     .err()
                     .map(|e| (path.clone(), e));
                 let summary = local.summary;

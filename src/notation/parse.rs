@@ -186,8 +186,9 @@ impl<'a> Parser_<'a> {
         let mut stack: Vec<(char, usize)> = Vec::new();
         let mut arrow: Option<(Span, Arrow)> = None;
         let mut ok = true;
-        let mut plus_left: Vec<usize> = Vec::new();
-        let mut plus_right: Vec<usize> = Vec::new();
+        // Top-level `+` positions; those before `arrow_plus` are on the left.
+        let mut pluses: Vec<usize> = Vec::with_capacity(8);
+        let mut arrow_plus = 0;
         // Bytes, not chars: every character that matters here is ASCII or
         // starts with a lead byte, so each hit is on a character boundary.
         let bytes = text.as_bytes();
@@ -210,6 +211,7 @@ impl<'a> Parser_<'a> {
                         ok = false;
                     } else {
                         arrow = Some((at..at + len, kind));
+                        arrow_plus = pluses.len();
                     }
                     i += len;
                     continue;
@@ -233,13 +235,7 @@ impl<'a> Parser_<'a> {
                         ok = false;
                     }
                 },
-                '+' if stack.is_empty() => {
-                    if arrow.is_some() {
-                        plus_right.push(at)
-                    } else {
-                        plus_left.push(at)
-                    }
-                }
+                '+' if stack.is_empty() => pluses.push(at),
                 _ => {}
             }
             i += 1;
@@ -261,8 +257,9 @@ impl<'a> Parser_<'a> {
         if !ok {
             return None;
         }
-        let left = self.side(within.start..arrow_span.start, &plus_left, "left");
-        let right = self.side(arrow_span.end..within.end, &plus_right, "right");
+        let (plus_left, plus_right) = pluses.split_at(arrow_plus.min(pluses.len()));
+        let left = self.side(within.start..arrow_span.start, plus_left, "left");
+        let right = self.side(arrow_span.end..within.end, plus_right, "right");
         Some(Reaction {
             left: left?,
             right: right?,
@@ -272,16 +269,13 @@ impl<'a> Parser_<'a> {
     }
 
     fn side(&mut self, span: Span, pluses: &[usize], name: &str) -> Option<Vec<Term>> {
-        let mut bounds = vec![span.start];
-        for p in pluses {
-            bounds.push(*p);
-            bounds.push(*p + 1);
-        }
-        bounds.push(span.end);
+        // Term i runs from after `+` number i - 1 to before `+` number i.
+        let starts = std::iter::once(span.start).chain(pluses.iter().map(|p| p + 1));
+        let ends = pluses.iter().copied().chain(std::iter::once(span.end));
         let mut terms = Vec::with_capacity(pluses.len() + 1);
         let mut ok = true;
-        for pair in bounds.chunks(2) {
-            let term_span = trim_span(self.src, pair[0]..pair[1]);
+        for (start, end) in starts.zip(ends) {
+            let term_span = trim_span(self.src, start..end);
             if term_span.is_empty() {
                 let at = if term_span.start > span.start {
                     term_span.start - 1

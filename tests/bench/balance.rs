@@ -3,7 +3,8 @@
 //! Run with `cargo bench --bench balance`. Targets: at least 100,000
 //! balanced reactions per second; `dope` for 50 dopants in 10 hosts in
 //! under a second. Wall-clock numbers on a shared machine are noisy; the
-//! best of several rounds is reported.
+//! median of several rounds is reported. Lines starting with `bench:` are
+//! read by `tests/peers/compare.sh`.
 
 use lacuna::balance::{Options, Status, balance};
 use lacuna::dope::{DopeOptions, mechanisms, parse_dopant};
@@ -15,41 +16,47 @@ use std::hint::black_box;
 use std::time::{Duration, Instant};
 
 /// Typical reactions, species only: the balancer finds every coefficient.
-const REACTIONS: &[(&str, &str)] = &[
-    ("ZrO2", "Y2O3 -> Y_Zr' + O_O + V_O.."),
-    ("ZrO2", "CaO -> Ca_Zr'' + O_O + V_O.."),
-    ("TiO2", "Nb2O5 -> Nb_Ti. + O_O + e' + O2(g)"),
-    ("TiO2", "Nb2O5 -> Nb_Ti. + V_Ti'''' + O_O"),
-    (
-        "BaTiO3",
-        "La2O3 + TiO2 -> La_Ba. + Ti_Ti + O_O + e' + O2(g)",
-    ),
-    ("MgO", "Al2O3 -> Al_Mg. + V_Mg'' + O_O"),
-    ("NiO", "Li2O + O2(g) -> Li_Ni' + O_O + h."),
-    ("CeO2", "O_O -> V_O.. + e' + O2(g)"),
-    ("BaZrO3", "H2O(g) + V_O.. + O_O -> OH_O."),
-    ("KCl", "CaCl2 -> (Ca_K. V_K')x + Cl_Cl"),
-];
+/// The same file is balanced by the sympy peer (`tests/peers/balance_sympy.py`).
+const REACTIONS: &str = include_str!("../peers/balance.kvr");
+
+/// (host, reaction) pairs of a reaction file: `host` lines set the host of
+/// the reactions below them; comments and blank lines are skipped.
+fn reactions(text: &str) -> Vec<(&str, &str)> {
+    let mut host = "";
+    let mut out = Vec::new();
+    for line in text.lines().map(str::trim) {
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        match line.strip_prefix("host ") {
+            Some(h) => host = h.trim(),
+            None => out.push((host, line)),
+        }
+    }
+    out
+}
 
 const HOSTS: &[&str] = &[
     "ZrO2", "CeO2", "TiO2", "MgO", "NiO", "Al2O3", "BaTiO3", "SrTiO3", "MgAl2O4", "KCl",
 ];
 
-fn best_of<T>(rounds: usize, mut f: impl FnMut() -> T) -> (Duration, T) {
-    let mut best = Duration::MAX;
+/// The median time of `rounds` runs of `f`, and its last value.
+fn median_of<T>(rounds: usize, mut f: impl FnMut() -> T) -> (Duration, T) {
+    let mut times = Vec::with_capacity(rounds);
     let mut last = None;
     for _ in 0..rounds {
         let start = Instant::now();
         let value = f();
-        best = best.min(start.elapsed());
+        times.push(start.elapsed());
         last = Some(value);
     }
-    (best, last.expect("at least one round"))
+    times.sort();
+    (times[times.len() / 2], last.expect("at least one round"))
 }
 
 fn main() {
-    let parsed: Vec<(Host, lacuna::notation::Reaction)> = REACTIONS
-        .iter()
+    let parsed: Vec<(Host, lacuna::notation::Reaction)> = reactions(REACTIONS)
+        .into_iter()
         .map(|(h, r)| {
             let host = Host::from_spec(h).expect("host");
             let (reaction, _) = parse_reaction(r, 0..r.len());
@@ -59,7 +66,7 @@ fn main() {
 
     // 1. Balancing throughput.
     let per_round = 20_000;
-    let (time, unique) = best_of(5, || {
+    let (time, unique) = median_of(7, || {
         let mut unique = 0usize;
         for i in 0..per_round {
             let (host, reaction) = &parsed[i % parsed.len()];
@@ -79,6 +86,10 @@ fn main() {
         rate,
         if rate >= 100_000.0 { "ok" } else { "SLOW" }
     );
+    println!(
+        "bench: balance.ns_per_reaction = {:.1}",
+        time.as_secs_f64() * 1e9 / per_round as f64
+    );
 
     // 2. dope for 50 dopants x 10 hosts.
     let hosts: Vec<Host> = HOSTS
@@ -97,7 +108,7 @@ fn main() {
         .take(50)
         .collect();
     assert_eq!(dopants.len(), 50);
-    let (time, count) = best_of(3, || {
+    let (time, count) = median_of(3, || {
         let mut count = 0usize;
         for host in &hosts {
             for dopant in &dopants {
@@ -119,9 +130,10 @@ fn main() {
             "SLOW"
         }
     );
+    println!("bench: dope.ms_500_pairs = {:.2}", time.as_secs_f64() * 1e3);
 
     // 3. The native catalogue of the ten hosts.
-    let (time, count) = best_of(5, || {
+    let (time, count) = median_of(5, || {
         hosts
             .iter()
             .map(|h| native_reactions(h).len())
@@ -129,6 +141,10 @@ fn main() {
     });
     println!(
         "native: 10 hosts in {:.2} ms, {count} reactions",
+        time.as_secs_f64() * 1e3
+    );
+    println!(
+        "bench: native.ms_10_hosts = {:.3}",
         time.as_secs_f64() * 1e3
     );
 }
