@@ -514,14 +514,9 @@ fn unicode_slope(q: Q) -> String {
     }
 }
 
-/// The regimes part of `lacuna brouwer --format table` (also the
-/// workbench's `/brouwer`): a heading, one row per regime with its
-/// condition, its range (unless `Unordered`) and the exact pO2 slope of
-/// every species, then the dopant slopes of each fixed total and, along
-/// temperature, the apparent enthalpies. Starts with a blank line.
-pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String {
-    use std::fmt::Write as _;
-    let mut out = String::new();
+/// The species' Unicode symbols and the column width that fits them all,
+/// for the terminal tables of regimes and concentrations.
+pub fn species_columns(model: &Model) -> (Vec<String>, usize) {
     let names: Vec<String> = (0..model.species.len())
         .map(|s| model.symbol(s, Style::Unicode).to_string())
         .collect();
@@ -532,10 +527,24 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
         .unwrap_or(4)
         .max(10)
         + 2;
-    let pad = |text: &str, w: usize| {
-        let n = text.chars().count();
-        format!("{text}{}", " ".repeat(w.saturating_sub(n)))
-    };
+    (names, width)
+}
+
+/// `text` padded with spaces to `width` characters.
+pub fn pad(text: &str, width: usize) -> String {
+    let n = text.chars().count();
+    format!("{text}{}", " ".repeat(width.saturating_sub(n)))
+}
+
+/// The regimes part of `lacuna brouwer --format table` (also the
+/// workbench's `/brouwer`): a heading, one row per regime with its
+/// condition, its range (unless `Unordered`) and the exact pO2 slope of
+/// every species, then the dopant slopes of each fixed total and, along
+/// temperature, the apparent enthalpies. Starts with a blank line.
+pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String {
+    use std::fmt::Write as _;
+    let mut out = String::new();
+    let (names, width) = species_columns(model);
     let _ = writeln!(
         out,
         "\n{} (exact slopes d log[X] / d log pO₂):",

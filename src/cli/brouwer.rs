@@ -503,20 +503,8 @@ fn table_text(model: &Model, run: &Run) -> String {
     for line in describe_model(model, run) {
         let _ = writeln!(out, "{line}");
     }
-    let names: Vec<String> = (0..model.species.len())
-        .map(|s| model.symbol(s, Style::Unicode).to_string())
-        .collect();
-    let width = names
-        .iter()
-        .map(|n| n.chars().count())
-        .max()
-        .unwrap_or(4)
-        .max(10)
-        + 2;
-    let pad = |text: &str, w: usize| {
-        let n = text.chars().count();
-        format!("{text}{}", " ".repeat(w.saturating_sub(n)))
-    };
+    let (names, width) = brouwer::species_columns(model);
+    let pad = brouwer::pad;
     if !run.regimes.is_empty() {
         let along = if matches!(run.mode, Mode::Temperature { .. }) {
             Along::Temperature
