@@ -70,9 +70,11 @@ pub fn classify(line: &str) -> Line {
     if let Some(label_len) = label_len(trimmed) {
         let after = &trimmed[label_len + 1..];
         let gap = after.len() - after.trim_start().len();
+        // `a: ` (a name and nothing after it): the gap runs past the
+        // trimmed end, so the reaction is empty rather than reversed.
         return Line::Reaction {
             label: Some(start..start + label_len),
-            reaction: start + label_len + 1 + gap..end,
+            reaction: (start + label_len + 1 + gap).min(end)..end,
         };
     }
     Line::Reaction {
@@ -127,6 +129,18 @@ mod tests {
                 reaction: 5..17
             }
         );
+        // A name with nothing after it, even with a space: an empty reaction
+        // (the parser then says the arrow is missing), never a reversed span.
+        for line in ["a:", "a: ", "a:  \t"] {
+            assert_eq!(
+                classify(line),
+                Line::Reaction {
+                    label: Some(0..1),
+                    reaction: 2..2
+                },
+                "{line:?}"
+            );
+        }
         assert_eq!(
             classify("K -> K_i. + e'"),
             Line::Reaction {
