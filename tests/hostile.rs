@@ -149,3 +149,15 @@ proptest! {
         prop_assert!(checker.check_reader("x", bytes.as_slice()).is_ok());
     }
 }
+
+#[test]
+fn a_name_with_nothing_after_it() {
+    for text in ["a: \n", "a:\n", "a:   # note\n", "r: -> \n"] {
+        let run = lacuna(&["check", "--host", "ZrO2", "-"], Some(text.as_bytes()));
+        assert_eq!(run.code, 1, "{text:?}: {}", run.stdout);
+        let run = lacuna(&["fmt", "-"], Some(text.as_bytes()));
+        assert!(run.code == 0 || run.code == 1, "{text:?}: {}", run.stderr);
+        let run = lacuna(&["repl"], Some(format!("/host ZrO2\n{text}").as_bytes()));
+        assert!(run.code == 0 || run.code == 1, "{text:?}: {}", run.stderr);
+    }
+}

@@ -121,7 +121,12 @@ const ARROWS: &[(&str, Arrow)] = &[
 const NIL_SPELLINGS: &[&str] = &["nil", "null", "0", "∅", "Ø", "\\emptyset", "\\varnothing"];
 
 fn trim_span(src: &str, span: Span) -> Span {
-    let text = &src[span.clone()];
+    // A span from a caller may be empty, reversed or off a character
+    // boundary; treat anything unusable as empty rather than panic.
+    let Some(text) = src.get(span.clone()) else {
+        let at = span.start.min(src.len());
+        return at..at;
+    };
     let start = span.start + (text.len() - text.trim_start().len());
     let end = span.end - (text.len() - text.trim_end().len());
     start..end.max(start)
