@@ -304,6 +304,30 @@ impl<'a> Parser_<'a> {
         ok.then_some(terms)
     }
 
+    /// An optional coefficient at the start of `text`, checked: `None` after
+    /// reporting a zero or an unreadable number.
+    fn read_coefficient<'s>(&mut self, text: &'s str) -> Option<(&'s str, Option<Q>)> {
+        let Ok((rest, Some(digits))) = coefficient(text) else {
+            return Some((text, None));
+        };
+        match number_value(digits) {
+            Ok(q) if q == Q::from_integer(0) => {
+                self.error(Code::Number, self.span_of(digits), "a coefficient of zero")
+                    .help = Some("drop the term instead".into());
+                None
+            }
+            Ok(q) => Some((rest, Some(q))),
+            Err(e) => {
+                self.error(
+                    Code::Number,
+                    self.span_of(digits),
+                    format!("coefficient `{digits}`: {e}"),
+                );
+                None
+            }
+        }
+    }
+
     /// `term = [ coefficient ] entity | nil ;`
     fn term(&mut self, span: Span) -> Option<Term> {
         let text = &self.src[span.clone()];
@@ -315,25 +339,7 @@ impl<'a> Parser_<'a> {
                 span,
             });
         }
-        let (rest, coefficient) = match coefficient(text) {
-            Ok((rest, Some(digits))) => match number_value(digits) {
-                Ok(q) if q == Q::from_integer(0) => {
-                    self.error(Code::Number, self.span_of(digits), "a coefficient of zero")
-                        .help = Some("drop the term instead".into());
-                    return None;
-                }
-                Ok(q) => (rest, Some(q)),
-                Err(e) => {
-                    self.error(
-                        Code::Number,
-                        self.span_of(digits),
-                        format!("coefficient `{digits}`: {e}"),
-                    );
-                    return None;
-                }
-            },
-            _ => (text, None),
-        };
+        let (rest, coefficient) = self.read_coefficient(text)?;
         if rest.is_empty() {
             self.error(Code::EmptyTerm, span, "a coefficient with nothing after it")
                 .help = Some("write the species it multiplies, e.g. `2 e'`".into());
@@ -411,20 +417,7 @@ impl<'a> Parser_<'a> {
                 break;
             }
             let part_start = inner;
-            let (rest, coefficient) = match coefficient(inner) {
-                Ok((rest, Some(digits))) => match number_value(digits) {
-                    Ok(q) => (rest, Some(q)),
-                    Err(e) => {
-                        self.error(
-                            Code::Number,
-                            self.span_of(digits),
-                            format!("coefficient `{digits}`: {e}"),
-                        );
-                        return None;
-                    }
-                },
-                _ => (inner, None),
-            };
+            let (rest, coefficient) = self.read_coefficient(inner)?;
             match self.species(rest) {
                 Some((rest, species)) => {
                     let span = self.pos(part_start)..self.pos(rest);
