@@ -6,10 +6,10 @@
 //! are inferred from the usual oxidation states when not given; an ambiguous
 //! formula is an error that asks for them, never a guess.
 
-use crate::diagnostic::{Code, Diagnostic};
-use crate::elements;
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::elements;
+use crate::base::number::{self, Q};
 use crate::notation::{Formula, Span, parse_formula};
-use crate::number::{self, Q};
 use std::fmt::Write;
 
 /// One sublattice of regular sites.

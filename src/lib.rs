@@ -1,43 +1,28 @@
 //! Lacuna: point-defect chemistry in Kröger–Vink notation.
 //!
-//! The pipeline, one module per stage: `notation` reads the text, `host`
-//! knows the sublattices, `check` tests the balances, `document` reads
-//! reaction files, `engine` runs checks over sources, `render` writes the
-//! results, and `cli` is the thin command-line layer over all of it.
-//!
-//! From reactions to predictions: `law` writes mass-action laws, `thermo`
-//! reads K(T) data and units, `model` assembles a reaction file into a
-//! defect model, `network` and `linalg` solve its log-linear structure
-//! exactly, `brouwer` finds the regimes with exact slopes, and
-//! `equilibrium` solves the full model numerically.
-//!
-//! Around them: `balance`, `dope` and `native` generate and balance
-//! reactions; `lint` and `format` serve reaction files in CI; `typeset`
-//! and `repl` serve manuscripts and interactive work; `fit` goes from
-//! measured conductivities back to mechanisms.
+//! The pipeline, one folder per stage: `base` holds exact numbers,
+//! diagnostics and element data; `notation` reads one reaction; `host`
+//! knows the sublattices; `check` tests the balances and the file rules;
+//! `file` reads reaction files, runs checks over sources and lays files out;
+//! `balance` and `generate` write balanced reactions; `model` turns
+//! reactions into mass-action laws and a defect model; `solve` finds the
+//! Brouwer regimes and the full equilibrium; `fit` goes from measurements
+//! back to mechanisms; `report` writes results for people and machines;
+//! `typeset` writes reactions for manuscripts. `app` (the command line and
+//! the workbench) is a doorway over all of it.
 
 pub mod balance;
-pub mod brouwer;
+pub mod base;
 pub mod check;
-pub mod cli;
-pub mod diagnostic;
-pub mod document;
-pub mod dope;
-pub mod elements;
-pub mod engine;
-pub mod equilibrium;
+pub mod file;
 pub mod fit;
-pub mod format;
+pub mod generate;
 pub mod host;
-pub mod law;
-pub mod linalg;
-pub mod lint;
 pub mod model;
-pub mod native;
-pub mod network;
 pub mod notation;
-pub mod number;
-pub mod render;
-pub mod repl;
-pub mod thermo;
+pub mod report;
+pub mod solve;
 pub mod typeset;
+
+#[cfg(feature = "cli")]
+pub mod app;

@@ -9,12 +9,12 @@
 //! (ASCII, Unicode, LaTeX) parse to the same reaction. Grammar of the forms:
 //! grammar/repl.md, "Typeset forms".
 
+use crate::base::number::{self, Q};
 use crate::host::Host;
 use crate::notation::{
     Entity, Phase, Reaction, Style, Term, escape_html, render_formula, render_reaction_over,
     render_term,
 };
-use crate::number::{self, Q};
 use std::fmt;
 
 /// An output form.

@@ -9,8 +9,8 @@
 //! Schottky, anti-Frenkel, Frenkel, acceptor and donor dopants, and
 //! dopant–vacancy association.
 
-use lacuna::equilibrium::{frozen_sweep, log_grid, po2_sweep};
 use lacuna::model::{Model, Overrides, read};
+use lacuna::solve::equilibrium::{frozen_sweep, log_grid, po2_sweep};
 use proptest::prelude::*;
 
 #[derive(Debug, Clone)]

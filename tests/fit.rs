@@ -415,7 +415,7 @@ proptest::proptest! {
             let r = r.unwrap();
             let _ = lacuna::fit::svg::render(&r);
             let mut sink = Vec::new();
-            lacuna::fit::report::write_table(&mut sink, &r, lacuna::render::Palette::PLAIN).unwrap();
+            lacuna::fit::report::write_table(&mut sink, &r, lacuna::report::Palette::PLAIN).unwrap();
         }
     }
 }

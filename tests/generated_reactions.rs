@@ -4,13 +4,13 @@
 //! reordering, moving and scaling the species. Self-contained.
 
 use lacuna::balance::{Options, Side, Status, balance};
+use lacuna::base::elements;
+use lacuna::base::number::Q;
 use lacuna::check::check_reaction;
-use lacuna::dope::{DopeOptions, mechanisms, parse_dopant};
-use lacuna::elements;
+use lacuna::generate::dope::{DopeOptions, mechanisms, parse_dopant};
+use lacuna::generate::native::native_reactions;
 use lacuna::host::Host;
-use lacuna::native::native_reactions;
 use lacuna::notation::{Reaction, Style, Term, parse_reaction, render_reaction, render_term};
-use lacuna::number::Q;
 use proptest::prelude::*;
 
 /// Metals with a common positive oxidation state: (symbol, state).

@@ -4,8 +4,8 @@
 
 use crate::support::lacuna;
 use lacuna::check::check_reaction;
-use lacuna::engine::{Checker, Recording};
-use lacuna::format::{MarkSpelling, format_text};
+use lacuna::file::layout::{MarkSpelling, format_text};
+use lacuna::file::runner::{Checker, Recording};
 use lacuna::host::Host;
 use lacuna::notation::parse_reaction;
 use proptest::prelude::*;

@@ -2,8 +2,8 @@
 //! every example file in examples/ runs through `law` and `brouwer`.
 
 use assert_cmd::Command;
-use lacuna::equilibrium::{log_grid, po2_sweep};
 use lacuna::model::{Model, Overrides, read};
+use lacuna::solve::equilibrium::{log_grid, po2_sweep};
 
 fn kvr_blocks(markdown: &str) -> Vec<String> {
     let mut blocks = Vec::new();

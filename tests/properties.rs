@@ -1,14 +1,14 @@
 //! Properties: render then parse gives the same species; reactions built
 //! balanced pass; one changed coefficient or charge mark makes them fail.
 
+use lacuna::base::elements;
+use lacuna::base::number::Q;
 use lacuna::check::check_reaction;
-use lacuna::elements;
 use lacuna::host::Host;
 use lacuna::notation::{
     Arrow, Entity, Formula, MarkStyle, Occupant, Reaction, Site, Species, Style, Term,
     VacancySpelling, parse_reaction, parse_species_text, render_reaction, render_species,
 };
-use lacuna::number::Q;
 use proptest::prelude::*;
 
 fn z(symbol: &str) -> u8 {
@@ -333,7 +333,7 @@ type Balances = (bool, bool, Option<bool>);
 
 /// Per reaction: line, ok, and the balances.
 fn verdicts(text: &str) -> Vec<(u32, bool, Option<Balances>)> {
-    use lacuna::engine::{Checker, Event, Recording};
+    use lacuna::file::runner::{Checker, Event, Recording};
     let mut recording = Recording {
         events: Vec::new(),
         keep_passing: true,
@@ -363,7 +363,7 @@ fn verdicts(text: &str) -> Vec<(u32, bool, Option<Balances>)> {
 proptest! {
     #[test]
     fn fmt_is_idempotent_and_keeps_every_verdict(file in arb_file(), unicode in any::<bool>()) {
-        use lacuna::format::{MarkSpelling, format_text};
+        use lacuna::file::layout::{MarkSpelling, format_text};
         let marks = if unicode { MarkSpelling::Unicode } else { MarkSpelling::Ascii };
         // Duplicate names are an error before and after; formatting must not change that either.
         let once = format_text(&file, marks).map_err(|e| TestCaseError::fail(format!("{file}\n{e:?}")))?;

@@ -3,13 +3,13 @@
 //! and the round trip parse(typeset(x)) = x for the forms Lacuna reads.
 
 use assert_cmd::cargo::cargo_bin_cmd;
+use lacuna::base::number::Q;
 use lacuna::host::Host;
 use lacuna::notation::latex_input::normalise;
 use lacuna::notation::{
     Arrow, Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term,
     VacancySpelling, parse_reaction,
 };
-use lacuna::number::Q;
 use lacuna::typeset::{self, Form};
 use predicates::prelude::*;
 use proptest::prelude::*;

@@ -2,8 +2,8 @@
 //! formatter: nothing may panic. Run: `cargo fuzz run --sanitizer none check_lines`.
 #![no_main]
 
-use lacuna::engine::{Checker, Recording};
-use lacuna::format::{MarkSpelling, format_text};
+use lacuna::file::runner::{Checker, Recording};
+use lacuna::file::layout::{MarkSpelling, format_text};
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {

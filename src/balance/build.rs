@@ -7,12 +7,12 @@
 //! the host's formal charges. A vacancy is spelled `Vac` and vanadium `el:V`
 //! whenever vanadium is around, so that the printed text reads back the same.
 
+use crate::base::number::Q;
 use crate::host::{Host, Sublattice};
 use crate::notation::{
     Arrow, Compound, Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site, Species, Term,
     VacancySpelling,
 };
-use crate::number::Q;
 use num_integer::Integer;
 
 const VANADIUM: u8 = 23;

@@ -9,13 +9,13 @@
 use super::build::{Builder, gas, term};
 use super::matrix::{TooLarge, nullspace};
 use super::{Law, Status, System, Unknown, orient, symbol};
-use crate::diagnostic::{Code, Diagnostic};
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::number::{self, Q};
 use crate::host::Sublattice;
 use crate::notation::{
     Entity, Formula, MarkStyle, Occupant, Site, Species, Style, VacancySpelling, render_reaction,
     render_species, render_term,
 };
-use crate::number::{self, Q};
 
 impl System<'_> {
     /// The written coefficients cannot hold: say so, and give the free answer

@@ -16,14 +16,14 @@ mod explain;
 mod matrix;
 pub mod report;
 
-use crate::diagnostic::{Code, Diagnostic};
-use crate::elements;
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::elements;
+use crate::base::number::{self, Q};
 use crate::host::{Host, SiteLookup};
 use crate::notation::{
     Entity, Occupant, Phase, Reaction, Site, Span, Style, Term, render_reaction, render_species,
     render_term,
 };
-use crate::number::{self, Q};
 use explain::signed;
 use matrix::{Matrix, TooLarge, nullspace, primitive, rank};
 use num_integer::Integer;

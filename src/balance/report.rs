@@ -7,11 +7,11 @@
 //! reaction, or the independent balanced reactions when there are several.
 
 use super::{Balanced, Options, Outcome, Status, balance};
+use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::check_reaction;
-use crate::diagnostic::{Code, Diagnostic, Severity};
 use crate::host::Host;
 use crate::notation::{Reaction, Style, render_reaction};
-use crate::render::Palette;
+use crate::report::Palette;
 use std::io::{self, Write};
 
 /// Checks `reaction` and balances it unless an error stands in the way.

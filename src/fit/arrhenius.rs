@@ -8,8 +8,7 @@
 
 use super::decompose::Estimate;
 use super::linalg::{critical_value, fit_line};
-use crate::number::Q;
-use serde::Serialize;
+use crate::base::number::Q;
 
 /// Boltzmann constant in eV/K (CODATA; exact since the 2019 SI).
 pub const K_B_EV: f64 = 8.617_333_262e-5;
@@ -17,8 +16,9 @@ pub const K_B_EV: f64 = 8.617_333_262e-5;
 pub const KJ_PER_MOL_PER_EV: f64 = 96.485_332_12;
 
 /// Which quantity is fitted against 1/T.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "kebab-case")]
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
 pub enum ArrheniusForm {
     /// ln(σ·T) = ln A − E_a/(k_B·T): the form of thermally activated hopping.
     SigmaT,
@@ -43,7 +43,8 @@ pub struct ComponentPoint {
     pub estimate: Estimate,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ArrheniusFit {
     /// `ion`, `n` or `p`.
     pub component: String,
@@ -143,7 +144,8 @@ pub fn fit_component(
 }
 
 /// A reaction enthalpy read from a term's activation energy.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Enthalpy {
     /// The reaction's name and equation.
     pub reaction: String,
@@ -151,7 +153,10 @@ pub struct Enthalpy {
     /// The term it comes from: `n`, `p` or `ion`.
     pub component: String,
     /// ΔH = factor × (E_a − E_μ); the factor is 1/e for a term ∝ K^e.
-    #[serde(serialize_with = "super::regimes::serialize_q")]
+    #[cfg_attr(
+        feature = "serde",
+        serde(serialize_with = "super::regimes::serialize_q")
+    )]
     pub factor: Q,
     pub value_ev: f64,
     pub se_ev: Option<f64>,

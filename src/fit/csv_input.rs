@@ -7,7 +7,7 @@
 //! does not stop at the first bad cell).
 
 use super::{Isotherm, Measurements, Point};
-use crate::diagnostic::{Code, Diagnostic};
+use crate::base::diagnostic::{Code, Diagnostic};
 use std::collections::HashMap;
 use std::ops::Range;
 

@@ -10,17 +10,26 @@
 //! extrapolated boundaries).
 
 use super::linalg::{Matrix, nnls, normal_inverse};
-use crate::number::Q;
-use serde::Serialize;
+use crate::base::number::Q;
 
 /// The three exponents of pO2, exact.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Exponents {
-    #[serde(serialize_with = "super::regimes::serialize_q")]
+    #[cfg_attr(
+        feature = "serde",
+        serde(serialize_with = "super::regimes::serialize_q")
+    )]
     pub ion: Q,
-    #[serde(serialize_with = "super::regimes::serialize_q")]
+    #[cfg_attr(
+        feature = "serde",
+        serde(serialize_with = "super::regimes::serialize_q")
+    )]
     pub n: Q,
-    #[serde(serialize_with = "super::regimes::serialize_q")]
+    #[cfg_attr(
+        feature = "serde",
+        serde(serialize_with = "super::regimes::serialize_q")
+    )]
     pub p: Q,
 }
 
@@ -29,7 +38,8 @@ pub(crate) fn q_to_f64(q: Q) -> f64 {
 }
 
 /// A fitted non-negative term.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Estimate {
     pub value: f64,
     /// Standard error; `None` at the zero bound or without degrees of freedom.
@@ -39,7 +49,8 @@ pub struct Estimate {
 }
 
 /// Where an electronic term equals the ionic one.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Boundary {
     pub po2_bar: f64,
     pub log10_po2: f64,
@@ -49,7 +60,8 @@ pub struct Boundary {
 }
 
 /// One point of the fitted curves.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct CurvePoint {
     pub po2_bar: f64,
     pub sigma: f64,
@@ -59,7 +71,8 @@ pub struct CurvePoint {
     pub t_ion: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Decomposition {
     pub exponents: Exponents,
     pub sigma_ion: Estimate,

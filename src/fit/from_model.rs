@@ -2,7 +2,7 @@
 //!
 //! In: a `Model` (a reaction file read by `crate::model`). Out:
 //! `ModelRegimes`: one `Regime` per exact Brouwer regime of the model
-//! (`crate::brouwer::all_regimes`), with the exact pO2 slope and the K
+//! (`crate::solve::regimes::all_regimes`), with the exact pO2 slope and the K
 //! exponents of n (the electron), p (the hole) and one ionic defect, and one
 //! `ReactionInfo` per equilibrium. Or a located diagnostic saying what the
 //! model lacks for a fit (O2 exchange, electrons, holes, a mobile ionic
@@ -22,13 +22,13 @@
 //! each regime's description and into the source line of the report.
 
 use super::regimes::{CarrierLaw, ModelRegimes, ReactionInfo, Regime};
-use crate::brouwer::{self, Dominance, PowerLaws, Sweep};
-use crate::diagnostic::{Code, Diagnostic};
-use crate::law::FactorKind;
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::number::Q;
 use crate::model::Model;
+use crate::model::law::FactorKind;
+use crate::model::thermo::{sig, temperature_text};
 use crate::notation::Style;
-use crate::number::Q;
-use crate::thermo::{sig, temperature_text};
+use crate::solve::regimes::{self, Dominance, PowerLaws, Sweep};
 
 /// A diagnostic about the model as a whole, placed at its first line.
 fn whole_model(model: &Model, message: String, help: &str) -> Diagnostic {
@@ -116,7 +116,7 @@ pub fn model_regimes(model: &Model) -> Result<ModelRegimes, Diagnostic> {
             "add the equilibrium of the mobile ionic defect, e.g. `red: O_O -> V_O.. + 2e' + 1/2 O2(g)` with its K",
         ));
     }
-    let all = brouwer::all_regimes(model).map_err(|d| d.locate(1, model.line_text(1)))?;
+    let all = regimes::all_regimes(model).map_err(|d| d.locate(1, model.line_text(1)))?;
     if all.is_empty() {
         return Err(whole_model(
             model,
@@ -166,7 +166,7 @@ pub fn model_regimes(model: &Model) -> Result<ModelRegimes, Diagnostic> {
     let mut picks: Vec<usize> = Vec::new();
     for &i in &order {
         let (dominance, laws) = &all[i];
-        let shell = brouwer::Regime {
+        let shell = regimes::Regime {
             dominance: dominance.clone(),
             laws: laws.clone(),
             from: f64::NAN,
@@ -308,7 +308,7 @@ fn places(model: &Model, all: &[(Dominance, PowerLaws)]) -> (Vec<Place>, Option<
     if model.ln_k(t).is_err() {
         return unknown("K is not known at the model's temperature");
     }
-    let Ok(found) = brouwer::regimes(model, Sweep::Po2 { temperature: t }, model.po2_range) else {
+    let Ok(found) = regimes::regimes(model, Sweep::Po2 { temperature: t }, model.po2_range) else {
         return unknown("its regimes could not be placed along pO2");
     };
     let places = all

@@ -37,11 +37,11 @@ use decompose::{DecomposeOptions, Decomposition, Exponents};
 use linalg::critical_value;
 use regimes::{CarrierLaw, ModelRegimes, Regime, SlopeMatch, match_slope};
 use segment::{BicEntry, SegmentOptions};
-use serde::Serialize;
 use std::fmt;
 
 /// One measurement, in kelvin, bar and S/cm.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Point {
     /// Line of the source file (0 when built in code).
     pub line: u32,
@@ -53,7 +53,8 @@ pub struct Point {
 }
 
 /// The points measured at one temperature.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Isotherm {
     pub label: String,
     /// Mean temperature of its points.
@@ -64,7 +65,8 @@ pub struct Isotherm {
 }
 
 /// A measurement file, read.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Measurements {
     pub source: String,
     pub temperature_column: String,
@@ -133,7 +135,8 @@ impl fmt::Display for FitError {
 impl std::error::Error for FitError {}
 
 /// One straight piece of an isotherm.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct SegmentReport {
     pub po2_min_bar: f64,
     pub po2_max_bar: f64,
@@ -146,7 +149,7 @@ pub struct SegmentReport {
     pub intercept: f64,
     pub rms_log10: f64,
     pub chi2_reduced: Option<f64>,
-    #[serde(rename = "match")]
+    #[cfg_attr(feature = "serde", serde(rename = "match"))]
     pub matching: SlopeMatch,
     /// From the decomposition: the term carrying most of σ over this piece
     /// (`ion`, `n`, `p`) and its smallest share there. Below
@@ -161,7 +164,8 @@ pub struct SegmentReport {
 pub const DOMINANT_SHARE: f64 = 0.9;
 
 /// A measured point with its place in the fit.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct DataPoint {
     pub line: u32,
     pub po2_bar: f64,
@@ -173,7 +177,8 @@ pub struct DataPoint {
     pub residual_log10: Option<f64>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct IsothermReport {
     pub label: String,
     pub temperature_k: f64,
@@ -194,7 +199,8 @@ pub struct IsothermReport {
 }
 
 /// An Arrhenius fit of one term, or why there is none.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ArrheniusOutcome {
     pub component: String,
     pub fit: Option<ArrheniusFit>,
@@ -202,7 +208,8 @@ pub struct ArrheniusOutcome {
 }
 
 /// The regime the decomposition used.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct RegimeSummary {
     pub name: String,
     pub neutrality: String,
@@ -210,14 +217,16 @@ pub struct RegimeSummary {
 }
 
 /// Constants the numbers rest on.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Constants {
     pub k_b_ev_per_k: f64,
     pub kj_per_mol_per_ev: f64,
     pub bar_per_atm: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct FitReport {
     pub source: String,
     pub columns: Vec<String>,
@@ -660,10 +669,10 @@ fn read_enthalpy(
         "n" => "σ_n°".to_string(),
         _ => "σ_p°".to_string(),
     };
-    let nonzero: Vec<&(String, crate::number::Q)> = law
+    let nonzero: Vec<&(String, crate::base::number::Q)> = law
         .k_exponents
         .iter()
-        .filter(|(_, e)| *e != crate::number::Q::from_integer(0))
+        .filter(|(_, e)| *e != crate::base::number::Q::from_integer(0))
         .collect();
     let form_text = match form {
         ArrheniusForm::SigmaT => "σ·T",
@@ -682,7 +691,7 @@ fn read_enthalpy(
             )
         }),
         [(name, e)] => {
-            let factor = crate::number::Q::from_integer(1) / *e;
+            let factor = crate::base::number::Q::from_integer(1) / *e;
             let f = decompose::q_to_f64(factor);
             let mu = mobility.unwrap_or(0.0);
             let value = f * (fit.activation_ev - mu);
@@ -708,17 +717,17 @@ fn read_enthalpy(
                 mobility_given: mobility.is_some(),
                 assumption: format!(
                     "{term} ∝ K_{name}^({}) in regime {} ({}), so ΔH_{name} = {} × (E_a − E_μ); the fixed concentrations do not change with temperature; {mobility_text}; E_a from the {form_text} form",
-                    crate::number::to_plain(*e),
+                    crate::base::number::to_plain(*e),
                     regime.name,
                     regime.neutrality,
-                    crate::number::to_plain(factor),
+                    crate::base::number::to_plain(factor),
                 ),
             });
         }
         several => {
             let sum = several
                 .iter()
-                .map(|(n, e)| format!("{}·ΔH_{n}", crate::number::to_plain(*e)))
+                .map(|(n, e)| format!("{}·ΔH_{n}", crate::base::number::to_plain(*e)))
                 .collect::<Vec<_>>()
                 .join(" + ");
             interpretations.push(format!(

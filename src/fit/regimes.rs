@@ -7,18 +7,18 @@
 //! Out: `ModelRegimes`, and `SlopeMatch` for a measured slope with its
 //! standard error.
 
-use crate::number::{self, Q};
-use serde::Serialize;
+use crate::base::number::{self, Q};
 
 /// How one concentration goes in a regime: `c ∝ pO2^slope · Π K_j^e_j`
 /// (times constants fixed by the regime, such as the dopant level).
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct CarrierLaw {
     /// Exact exponent of pO2.
-    #[serde(serialize_with = "serialize_q")]
+    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub slope: Q,
     /// Exponents of the equilibrium constants, by reaction name.
-    #[serde(serialize_with = "serialize_q_pairs")]
+    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q_pairs"))]
     pub k_exponents: Vec<(String, Q)>,
 }
 
@@ -35,7 +35,8 @@ impl CarrierLaw {
 }
 
 /// One Brouwer regime.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Regime {
     /// Short name used on the command line (`--regime`) and in reports.
     pub name: String,
@@ -49,7 +50,8 @@ pub struct Regime {
 }
 
 /// A defect reaction the regimes refer to by name.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ReactionInfo {
     pub name: String,
     pub equation: String,
@@ -58,7 +60,8 @@ pub struct ReactionInfo {
 }
 
 /// The regimes a fit compares its slopes with.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct ModelRegimes {
     /// Where the regimes come from (a model file, or the textbook set).
     pub source: String,
@@ -200,7 +203,9 @@ impl ModelRegimes {
     }
 
     /// The exact regimes of a defect model (see `super::from_model`).
-    pub fn from_model(model: &crate::model::Model) -> Result<Self, crate::diagnostic::Diagnostic> {
+    pub fn from_model(
+        model: &crate::model::Model,
+    ) -> Result<Self, crate::base::diagnostic::Diagnostic> {
         super::from_model::model_regimes(model)
     }
 
@@ -299,9 +304,10 @@ fn reaction(name: &str, equation: &str, law: &str) -> ReactionInfo {
 }
 
 /// An exact slope a measurement may be compared with.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Candidate {
-    #[serde(serialize_with = "serialize_q")]
+    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub slope: Q,
     /// `carrier in regime` for each regime that predicts this slope; empty
     /// for a simple slope no regime predicts.
@@ -309,8 +315,9 @@ pub struct Candidate {
 }
 
 /// How a measured slope compares with the exact candidates.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "kebab-case")]
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
 pub enum Verdict {
     /// Exactly one candidate lies inside the confidence interval.
     Match,
@@ -334,15 +341,16 @@ impl Verdict {
 }
 
 /// The comparison of one measured slope with the candidates.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct SlopeMatch {
     /// The nearest candidate.
-    #[serde(serialize_with = "serialize_q")]
+    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub nearest: Q,
     /// (slope − nearest) / SE, when the SE is known.
     pub z: Option<f64>,
     /// Every candidate inside the confidence interval.
-    #[serde(serialize_with = "serialize_q_list")]
+    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q_list"))]
     pub within: Vec<Q>,
     pub verdict: Verdict,
     /// The regimes predicting the nearest candidate (or, for a match, the
@@ -406,14 +414,17 @@ pub fn slope_text(s: Q) -> String {
     }
 }
 
+#[cfg(feature = "serde")]
 pub(crate) fn serialize_q<S: serde::Serializer>(v: &Q, s: S) -> Result<S::Ok, S::Error> {
     s.serialize_str(&number::to_plain(*v))
 }
 
+#[cfg(feature = "serde")]
 fn serialize_q_list<S: serde::Serializer>(v: &[Q], s: S) -> Result<S::Ok, S::Error> {
     s.collect_seq(v.iter().map(|q| number::to_plain(*q)))
 }
 
+#[cfg(feature = "serde")]
 fn serialize_q_pairs<S: serde::Serializer>(v: &[(String, Q)], s: S) -> Result<S::Ok, S::Error> {
     s.collect_map(v.iter().map(|(k, q)| (k, number::to_plain(*q))))
 }
@@ -421,7 +432,7 @@ fn serialize_q_pairs<S: serde::Serializer>(v: &[(String, Q)], s: S) -> Result<S:
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::number::{add, mul};
+    use crate::base::number::{add, mul};
     use std::collections::BTreeMap;
 
     /// Exponent vector of a concentration: pO2 and each independent K.

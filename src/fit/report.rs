@@ -6,7 +6,7 @@
 
 use super::regimes::{Verdict, slope_text};
 use super::{FitReport, IsothermReport};
-use crate::render::Palette;
+use crate::report::Palette;
 use std::io::{self, Write};
 
 /// A number in compact scientific form: `1.23e-20`.
@@ -33,8 +33,8 @@ fn pm_sci(value: f64, se: Option<f64>) -> String {
 }
 
 /// Exponent as written beside a prefactor unit: `bar^(−1/4)`.
-fn unit_for(exponent: crate::number::Q) -> String {
-    if exponent == crate::number::Q::from_integer(0) {
+fn unit_for(exponent: crate::base::number::Q) -> String {
+    if exponent == crate::base::number::Q::from_integer(0) {
         "S/cm".into()
     } else {
         format!("S/cm at 1 bar, × pO2^({})", slope_text(exponent))
@@ -64,8 +64,8 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         "regimes: {}; decomposition in regime {} ({}):",
         r.regimes_source, r.regime.name, r.regime.neutrality
     )?;
-    let term = |name: &str, q: crate::number::Q| {
-        if q == crate::number::Q::from_integer(0) {
+    let term = |name: &str, q: crate::base::number::Q| {
+        if q == crate::base::number::Q::from_integer(0) {
             name.to_string()
         } else {
             format!("{name}·pO2^({})", slope_text(q))
@@ -363,7 +363,7 @@ fn write_arrhenius(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
             out,
             "  ΔH_{} = {} × (E_a({}) − E_μ) = {} eV = {} kJ/mol   [{}]",
             h.reaction,
-            crate::number::to_plain(h.factor),
+            crate::base::number::to_plain(h.factor),
             h.component,
             pm(h.value_ev, h.se_ev, 3).trim_start_matches('+'),
             pm(h.value_kj_mol, h.se_kj_mol, 1).trim_start_matches('+'),

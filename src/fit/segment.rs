@@ -29,7 +29,6 @@
 #![allow(clippy::needless_range_loop)]
 
 use super::linalg::{LineFit, Matrix, critical_value, fit_line, lstsq, normal_inverse};
-use serde::Serialize;
 
 /// Choices of the segmentation.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -61,7 +60,8 @@ pub struct Piece {
 }
 
 /// BIC of the best split into `segments` pieces.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct BicEntry {
     pub segments: usize,
     pub wrss: f64,

@@ -7,7 +7,7 @@ use super::arrhenius::{ArrheniusForm, K_B_EV};
 use super::csv_input::BAR_PER_ATM;
 use super::regimes::Verdict;
 use super::*;
-use crate::number::Q;
+use crate::base::number::Q;
 
 /// SplitMix64 (Steele, Lea and Flood, OOPSLA 2014) with Box–Muller normals:
 /// deterministic, so every run sees the same noise.

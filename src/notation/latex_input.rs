@@ -11,7 +11,7 @@
 //! Grammar and the list of commands: grammar/repl.md, "LaTeX input".
 
 use super::Span;
-use crate::diagnostic::{Code, Diagnostic};
+use crate::base::diagnostic::{Code, Diagnostic};
 
 /// Plain notation made from LaTeX, with a map back to the LaTeX.
 #[derive(Debug, Clone, PartialEq, Eq)]

@@ -15,7 +15,7 @@ pub use render::{
     render_term,
 };
 
-use crate::number::Q;
+use crate::base::number::Q;
 use std::ops::Range;
 
 /// Byte range within the source line.

@@ -10,9 +10,9 @@ use super::{
     Arrow, Associate, Compound, Entity, Formula, MarkStyle, Occupant, Phase, Reaction, Site, Span,
     Species, Term, VacancySpelling,
 };
-use crate::diagnostic::{Code, Diagnostic};
-use crate::elements;
-use crate::number::{self, NumberError, Q};
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::elements;
+use crate::base::number::{self, NumberError, Q};
 use nom::branch::alt;
 use nom::bytes::complete::{tag, take_while, take_while1};
 use nom::character::complete::{char, digit1, satisfy};
@@ -204,7 +204,7 @@ impl<'a> Parser_<'a> {
             if stack.is_empty() && matches!(byte, b'\\' | b'<' | b'-' | b'=' | 0xE2) {
                 if let Some((len, kind)) = arrow_at(&text[i..]) {
                     if let Some((first, _)) = &arrow {
-                        let first_col = crate::diagnostic::column_of(self.src, first.start);
+                        let first_col = crate::base::diagnostic::column_of(self.src, first.start);
                         self.error(
                             Code::ExtraArrow,
                             at..at + len,

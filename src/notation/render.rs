@@ -8,8 +8,8 @@ use super::{
     Associate, Compound, Entity, Formula, Occupant, Phase, Reaction, Site, Species, Term,
     VacancySpelling,
 };
-use crate::elements;
-use crate::number::{self, Q};
+use crate::base::elements;
+use crate::base::number::{self, Q};
 use std::fmt::Write;
 
 /// Which spelling of the notation to write.

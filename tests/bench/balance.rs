@@ -7,10 +7,10 @@
 //! read by `tests/peers/compare.sh`.
 
 use lacuna::balance::{Options, Status, balance};
-use lacuna::dope::{DopeOptions, mechanisms, parse_dopant};
-use lacuna::elements;
+use lacuna::base::elements;
+use lacuna::generate::dope::{DopeOptions, mechanisms, parse_dopant};
+use lacuna::generate::native::native_reactions;
 use lacuna::host::Host;
-use lacuna::native::native_reactions;
 use lacuna::notation::parse_reaction;
 use std::hint::black_box;
 use std::time::{Duration, Instant};

@@ -6,10 +6,10 @@
 //! and peak memory independent of file length (under 64 MB for the million
 //! lines). This prints what it measured; it asserts nothing about time.
 
-use lacuna::engine::Checker;
+use lacuna::file::runner::Checker;
 
-use lacuna::lint::{Level, Levels};
-use lacuna::render::{Palette, human::HumanSink};
+use lacuna::check::rules::{Level, Levels};
+use lacuna::report::{Palette, human::HumanSink};
 use std::fs::File;
 use std::io::{BufRead, BufReader, BufWriter, Write};
 use std::time::Instant;

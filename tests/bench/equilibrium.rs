@@ -4,8 +4,8 @@
 //! `cargo bench --bench equilibrium`. Prints the median of several runs;
 //! the line starting with `bench:` is read by `tests/peers/compare.sh`.
 
-use lacuna::equilibrium::{log_grid, po2_sweep};
 use lacuna::model::{Model, Overrides, read};
+use lacuna::solve::equilibrium::{log_grid, po2_sweep};
 use std::time::Instant;
 
 /// Acceptor-doped MO2 with every native defect family and association

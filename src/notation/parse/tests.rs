@@ -1,7 +1,7 @@
 //! Parser tables: every accepted spelling, and every error with its column.
 
 use super::*;
-use crate::diagnostic::column_of;
+use crate::base::diagnostic::column_of;
 use crate::notation::{Style, render_reaction, render_species};
 
 /// Parses `text` as a reaction and renders it in ASCII, or returns the
@@ -250,8 +250,8 @@ fn case_suspects_warn() {
 #[test]
 fn formulas_parse_with_groups_and_decimals() {
     let f = parse_formula("Ba(OH)2", 0..7).expect("parses");
-    let ba = crate::elements::by_symbol("Ba").unwrap().z;
-    let h = crate::elements::by_symbol("H").unwrap().z;
+    let ba = crate::base::elements::by_symbol("Ba").unwrap().z;
+    let h = crate::base::elements::by_symbol("H").unwrap().z;
     assert_eq!(f.count(ba), Q::from_integer(1));
     assert_eq!(f.count(h), Q::from_integer(2));
     assert!(parse_formula("ZrO2x", 0..5).is_err());

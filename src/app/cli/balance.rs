@@ -1,0 +1,233 @@
+//! `lacuna balance`: find the coefficients of a reaction from its species.
+//! Exit 0 when the species balance (uniquely or in several ways), 1 when
+//! they cannot or the reaction has errors, 2 for usage errors.
+
+use super::{ColorChoice, fail, host_argument};
+use crate::balance::report::{check_and_balance, write_outcome};
+use crate::balance::{Outcome, Status};
+use crate::base::diagnostic::Diagnostic;
+use crate::base::number;
+use crate::host::Host;
+use crate::notation::{Style, parse_reaction, render_reaction};
+use crate::report::{Palette, human::write_diagnostic};
+use clap::{Args, ValueEnum};
+use serde::Serialize;
+use std::io::{self, Write};
+use std::process::ExitCode;
+
+#[derive(Debug, Args)]
+pub struct BalanceArgs {
+    /// The reaction to balance, e.g. "Nb2O5 -> Nb_Ti. + O_O + e' + O2(g)".
+    /// Coefficients you write are kept; the others are found.
+    #[arg(value_name = "REACTION", conflicts_with = "reaction")]
+    pub positional: Option<String>,
+    /// The reaction to balance (same as the positional argument).
+    #[arg(short, long, value_name = "TEXT")]
+    pub reaction: Option<String>,
+    /// The host crystal, e.g. `TiO2` or `Fe3O4 sites Fe:A +3 x1, Fe:B +5/2 x2, O -2`.
+    /// Without it only mass and charge are balanced.
+    #[arg(long, value_name = "SPEC")]
+    pub host: Option<String>,
+    /// Write the conventional form: condensed species in smallest integers,
+    /// gases fractional (`½ O2(g)`).
+    #[arg(long)]
+    pub conventional: bool,
+    /// Treat every coefficient as unknown, also the ones written.
+    #[arg(long)]
+    pub free: bool,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = OutputFormat::Human)]
+    pub format: OutputFormat,
+    /// How to write the notation.
+    #[arg(long, value_enum, default_value_t = NotationStyle::Unicode)]
+    pub style: NotationStyle,
+    /// When to use colour.
+    #[arg(long, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
+    pub color: ColorChoice,
+}
+
+/// Output format of the generating commands (`balance`, `dope`, `native`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum OutputFormat {
+    /// Text for people.
+    Human,
+    /// Machine-readable (stable keys).
+    Json,
+}
+
+/// Which spelling of Kröger–Vink notation to print.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum NotationStyle {
+    /// `V_O••`, `Y_Zr′`, `→`
+    Unicode,
+    /// `V_O..`, `Y_Zr'`, `->`
+    Ascii,
+    /// LaTeX math
+    Latex,
+}
+
+impl NotationStyle {
+    pub fn style(self) -> Style {
+        match self {
+            NotationStyle::Unicode => Style::Unicode,
+            NotationStyle::Ascii => Style::Ascii,
+            NotationStyle::Latex => Style::Latex,
+        }
+    }
+}
+
+pub use crate::report::json::JsonDiagnostic;
+
+#[derive(Debug, Serialize)]
+struct JsonTerm<'a> {
+    species: &'a str,
+    side: &'static str,
+    coefficient: String,
+}
+
+#[derive(Debug, Serialize)]
+struct JsonReaction<'a> {
+    text: String,
+    terms: Vec<JsonTerm<'a>>,
+}
+
+#[derive(Debug, Serialize)]
+struct JsonReport<'a> {
+    status: &'static str,
+    reactions: Vec<JsonReaction<'a>>,
+    diagnostics: Vec<JsonDiagnostic<'a>>,
+}
+
+/// Writes `value` as pretty JSON and a newline to stdout.
+pub fn print_json<T: Serialize>(value: &T) -> io::Result<()> {
+    // Serialise first, so a closed pipe surfaces as an I/O error of its own kind.
+    let mut text = serde_json::to_string_pretty(value).map_err(io::Error::other)?;
+    text.push('\n');
+    let mut out = io::stdout().lock();
+    out.write_all(text.as_bytes())?;
+    out.flush()
+}
+
+pub fn run(args: &BalanceArgs) -> ExitCode {
+    let Some(text) = args.positional.as_ref().or(args.reaction.as_ref()) else {
+        return fail(
+            "nothing to balance: give the reaction, e.g. `lacuna balance --host TiO2 \"Nb2O5 -> Nb_Ti. + O_O + e' + O2(g)\"`",
+        );
+    };
+    let text = text.replace(['\n', '\r'], " ");
+    let host = match args.host.as_deref().map(host_argument).transpose() {
+        Ok(host) => host,
+        Err(code) => return code,
+    };
+    if host
+        .as_ref()
+        .is_some_and(|h| !crate::balance::build::has_sites(h))
+    {
+        return fail("the --host value has a sublattice with no sites (a zero count)");
+    }
+    let (outcome, diagnostics) = balance_text(&text, host.as_ref(), !args.free);
+    let result = match args.format {
+        OutputFormat::Human => human(args, &text, outcome.as_ref(), &diagnostics),
+        OutputFormat::Json => print_json(&to_json(args, &text, outcome.as_ref(), &diagnostics)),
+    };
+    match result {
+        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
+        Err(e) => fail(e),
+        Ok(()) => match outcome.map(|o| o.status) {
+            Some(Status::Unique | Status::Several) => ExitCode::SUCCESS,
+            _ => ExitCode::from(1),
+        },
+    }
+}
+
+/// Parses, validates and balances; returns the outcome (none when the text
+/// has errors) and every diagnostic, located on line 1 of `text`.
+fn balance_text(
+    text: &str,
+    host: Option<&Host>,
+    keep_written: bool,
+) -> (Option<Outcome>, Vec<Diagnostic>) {
+    let (parsed, found) = parse_reaction(text, 0..text.len());
+    let (outcome, diagnostics) = match parsed {
+        Some(reaction) => {
+            let (outcome, diagnostics) = check_and_balance(
+                &reaction,
+                host,
+                keep_written,
+                found,
+                "pass --host, e.g. `--host ZrO2`, to balance the site ratio too",
+            );
+            (Some(outcome), diagnostics)
+        }
+        None => (None, found),
+    };
+    let located = diagnostics.into_iter().map(|d| d.locate(1, text)).collect();
+    (outcome, located)
+}
+
+fn human(
+    args: &BalanceArgs,
+    text: &str,
+    outcome: Option<&Outcome>,
+    diagnostics: &[Diagnostic],
+) -> io::Result<()> {
+    let palette: Palette = args.color.palette();
+    let style = args.style.style();
+    let mut out = io::stdout().lock();
+    let mut printed = false;
+    if let Some(outcome) = outcome {
+        printed = write_outcome(&mut out, palette, outcome, style, args.conventional)?;
+    }
+    for d in diagnostics {
+        if printed {
+            writeln!(out)?;
+        }
+        write_diagnostic(&mut out, palette, "--reaction", text, d)?;
+        printed = true;
+    }
+    out.flush()
+}
+
+fn to_json<'a>(
+    args: &BalanceArgs,
+    text: &'a str,
+    outcome: Option<&Outcome>,
+    diagnostics: &'a [Diagnostic],
+) -> JsonReport<'a> {
+    let style = args.style.style();
+    let status = outcome.map_or(Status::None, |o| o.status);
+    let reactions = outcome
+        .map(|o| o.reactions.as_slice())
+        .unwrap_or_default()
+        .iter()
+        .map(|b| {
+            let reaction = if args.conventional {
+                &b.conventional
+            } else {
+                &b.reaction
+            };
+            let terms = b
+                .terms
+                .iter()
+                .map(|t| JsonTerm {
+                    species: text.get(t.span.clone()).unwrap_or(""),
+                    side: t.side.as_str(),
+                    coefficient: number::to_plain(if args.conventional {
+                        t.conventional
+                    } else {
+                        t.coefficient
+                    }),
+                })
+                .collect();
+            JsonReaction {
+                text: render_reaction(reaction, style),
+                terms,
+            }
+        })
+        .collect();
+    JsonReport {
+        status: status.as_str(),
+        reactions,
+        diagnostics: diagnostics.iter().map(JsonDiagnostic::from).collect(),
+    }
+}

@@ -1,0 +1,151 @@
+//! The command line: argument definitions and one function per command, each
+//! a thin layer over the library. Exit codes: 0 all good, 1 the input has
+//! problems, 2 usage or I/O error.
+
+mod balance;
+mod brouwer;
+mod check;
+mod dope;
+mod explain;
+mod fit;
+mod fmt;
+mod law;
+mod model_input;
+mod native;
+mod repl;
+mod typeset;
+
+use crate::host::Host;
+use crate::report::Palette;
+use clap::{Parser, Subcommand, ValueEnum};
+use std::io::{self, IsTerminal, Write};
+use std::process::ExitCode;
+
+/// Point-defect chemistry in Kröger–Vink notation.
+#[derive(Debug, Parser)]
+///
+/// With no command on a terminal, starts the workbench (`lacuna repl`).
+#[command(name = "lacuna", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Check that reactions balance in mass, charge and sites.
+    Check(check::CheckArgs),
+    /// Rewrite reaction files in one canonical layout.
+    Fmt(fmt::FmtArgs),
+    /// Explain a diagnostic code, or list them all.
+    Explain(explain::ExplainArgs),
+    /// Fit conductivity versus pO2 and temperature: regime slopes, ionic and
+    /// electronic parts, activation energies.
+    Fit(fit::FitArgs),
+    /// Work interactively (also `lacuna` alone on a terminal): type, check, name, save and typeset reactions.
+    Repl(repl::ReplArgs),
+    /// Write reactions and species for manuscripts (LaTeX, Unicode, HTML, ...).
+    Typeset(typeset::TypesetArgs),
+    /// Find the coefficients of a reaction from its species (exact; unique,
+    /// several or none, each explained).
+    Balance(balance::BalanceArgs),
+    /// List a host's intrinsic defect reactions (Schottky, Frenkel,
+    /// electronic, redox, antisite), balanced.
+    Native(native::NativeArgs),
+    /// Propose every balanced way a dopant can enter a host, ranked by size
+    /// and charge match; convert dopant levels between units.
+    Dope(dope::DopeArgs),
+    /// Write the mass-action law of each reaction, with K(T) and its units.
+    Law(law::LawArgs),
+    /// Solve a defect model: exact Brouwer regimes and slopes, the full
+    /// numerical equilibrium over pO2 or temperature, frozen-in defects;
+    /// as a table, CSV, JSON or an SVG diagram.
+    Brouwer(brouwer::BrouwerArgs),
+}
+
+/// Output format of `check`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Annotated text for people.
+    Human,
+    /// Machine-readable report (stable keys).
+    Json,
+    /// One `file:line:column: severity: message` line per problem.
+    Gnu,
+    /// SARIF 2.1.0 for code-scanning services.
+    Sarif,
+}
+
+/// When to colour terminal output.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ColorChoice {
+    Auto,
+    Always,
+    Never,
+}
+
+impl ColorChoice {
+    /// Decides colour for standard output: `auto` colours a terminal unless
+    /// NO_COLOR is set.
+    pub fn palette(self) -> Palette {
+        let enabled = match self {
+            ColorChoice::Always => true,
+            ColorChoice::Never => false,
+            ColorChoice::Auto => {
+                io::stdout().is_terminal()
+                    && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+            }
+        };
+        Palette { enabled }
+    }
+}
+
+/// Parses the process arguments and runs the command.
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Some(Command::Check(args)) => check::run(&args),
+        Some(Command::Fmt(args)) => fmt::run(&args),
+        Some(Command::Explain(args)) => explain::run(&args),
+        Some(Command::Fit(args)) => fit::run(&args),
+        Some(Command::Balance(args)) => balance::run(&args),
+        Some(Command::Native(args)) => native::run(&args),
+        Some(Command::Dope(args)) => dope::run(&args),
+        Some(Command::Law(args)) => law::run(&args),
+        Some(Command::Brouwer(args)) => brouwer::run(&args),
+        Some(Command::Repl(args)) => repl::run(&args),
+        Some(Command::Typeset(args)) => typeset::run(&args),
+        // No command: the workbench on a terminal, else help and a usage error.
+        None if repl::on_terminal() => repl::run(&repl::ReplArgs::bare()),
+        None => {
+            use clap::CommandFactory;
+            let help = Cli::command().render_help();
+            let _ = write!(io::stderr(), "{help}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// Prints a usage or I/O problem to stderr and returns exit code 2.
+pub fn fail(message: impl std::fmt::Display) -> ExitCode {
+    let _ = writeln!(io::stderr(), "lacuna: {message}");
+    ExitCode::from(2)
+}
+
+/// Parses a `--host` value, printing its diagnostics as a usage error.
+pub fn host_argument(spec: &str) -> Result<Host, ExitCode> {
+    Host::from_spec(spec).map_err(|diagnostics| {
+        let mut stderr = io::stderr();
+        for d in diagnostics {
+            let d = d.locate(1, spec);
+            let _ = crate::report::human::write_diagnostic(
+                &mut stderr,
+                Palette::PLAIN,
+                "--host",
+                spec,
+                &d,
+            );
+        }
+        fail("the --host value is not a usable host")
+    })
+}

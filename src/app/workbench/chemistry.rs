@@ -1,0 +1,626 @@
+//! The workbench's chemistry commands: thin layers over the library that
+//! print what the matching `lacuna` command prints.
+//!
+//! In: the session (its host, reactions and the model lines kept from
+//! loaded files) and the command's words. Out: `/balance WHICH` balances a
+//! session reaction (`crate::balance`) and offers a unique answer for
+//! `/take`; `/dope OXIDE [SITE]` ranks the incorporation mechanisms in the
+//! session's host (`crate::generate::dope`); `/law [WHICH...]` writes mass-action laws
+//! (`crate::model::law`); `/brouwer [WHICH...]` reads the session as a model file
+//! (`crate::model`, as `/save` would write it) and prints its exact regimes
+//! (`crate::solve::regimes`), ordered along pO2 when K values and a temperature
+//! allow it, else every regime with the plain statement that K values are
+//! needed to order them.
+
+use super::store::file_text_with_lines;
+use super::{Args, Failure, Offer, Session};
+use crate::balance::Status;
+use crate::balance::report::{check_and_balance, write_outcome};
+use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::number::Q;
+use crate::generate::dope::table::{TableInput, write_report};
+use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
+use crate::host::Host;
+use crate::model::law::{FactorKind, mass_action_law, write_law_text};
+use crate::model::thermo::temperature_text;
+use crate::model::{self, DataLine, Document, Model, Overrides};
+use crate::notation::{Span, Style, parse_reaction, render_reaction};
+use crate::report::human::write_diagnostic;
+use crate::solve::regimes::{self, Along, Regime, Sweep};
+use std::io::Write;
+
+/// A diagnostic of an argument's own text (located on line 1 of it) moved
+/// to the argument's place in the command line.
+fn at_word(d: Diagnostic, word: &Span) -> Diagnostic {
+    let mut d = d;
+    d.span = word.start + d.span.start..word.start + d.span.end;
+    d.line = 0;
+    d.column = 0;
+    d
+}
+
+/// `/balance WHICH [--free]`
+pub(super) fn balance(
+    session: &mut Session,
+    args: &Args<'_>,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let free = args.words.iter().any(|(w, _)| *w == "--free");
+    let which: Vec<(&str, Span)> = args
+        .words
+        .iter()
+        .filter(|(w, _)| *w != "--free")
+        .cloned()
+        .collect();
+    let [(word, span)] = which.as_slice() else {
+        return Err(args
+            .usage_error(None, "`/balance` takes one reaction")
+            .with_help("e.g. `/balance 2` or `/balance red`; `--free` treats the coefficients you wrote as unknown too")
+            .into());
+    };
+    if *word == "all" {
+        return Err(args
+            .usage_error(
+                Some(span.clone()),
+                "`/balance` balances one reaction at a time",
+            )
+            .with_help("name it by number or label, e.g. `/balance 2`")
+            .into());
+    }
+    let index = session
+        .select(args, std::slice::from_ref(&(*word, span.clone())))?
+        .first()
+        .copied()
+        .ok_or_else(|| args.usage_error(Some(span.clone()), "no reaction to balance"))?;
+    let Some((line, _)) = session.recheck(index) else {
+        return Err(args
+            .usage_error(Some(span.clone()), "no reaction to balance")
+            .into());
+    };
+    let entry = &session.entries[index];
+    let start = entry.label.as_ref().map_or(0, |l| l.len() + 2);
+    let (parsed, found) = parse_reaction(&line, start..start + entry.text.len());
+    let Some(reaction) = parsed else {
+        return Err(args
+            .usage_error(
+                Some(span.clone()),
+                format!("{} does not read as a reaction", session.entry_tag(index)),
+            )
+            .with_help("`/check` shows why; type it again corrected")
+            .into());
+    };
+    let host = entry.host.as_ref().map(|h| &h.host);
+    let (outcome, diagnostics) = check_and_balance(
+        &reaction,
+        host,
+        !free,
+        found,
+        "set one with `/host ZrO2` to balance the site ratio too",
+    );
+    let p = session.palette;
+    let mut printed = write_outcome(out, p, &outcome, Style::Unicode, false)?;
+    let source = format!("reaction {}", index + 1);
+    for d in &diagnostics {
+        if printed {
+            writeln!(out)?;
+        }
+        write_diagnostic(out, p, &source, &line, &d.clone().locate(1, &line))?;
+        printed = true;
+    }
+    session.offer = None;
+    match outcome.status {
+        Status::Unique => {
+            let Some(b) = outcome.reactions.first() else {
+                return Ok(());
+            };
+            if b.terms.iter().any(|t| t.coefficient == Q::from_integer(0)) {
+                writeln!(
+                    out,
+                    "  not offered for `/take`: a species you wrote takes no part"
+                )?;
+                return Ok(());
+            }
+            // Fractions written stay fractions, as the offer after a failing reaction does.
+            let fractions = reaction.terms().any(|(_, t)| !t.coefficient.is_integer());
+            let balanced = if fractions {
+                b.conventional.clone()
+            } else {
+                b.reaction.clone()
+            };
+            let tag = session.entry_tag(index);
+            if render_reaction(&balanced, Style::Unicode)
+                == render_reaction(&reaction, Style::Unicode)
+            {
+                writeln!(out, "  {tag} is balanced as written")?;
+            } else {
+                writeln!(out, "  {} keeps it in place of {tag}", p.strong("/take"))?;
+                session.offer = Some(Offer {
+                    entry: index,
+                    reaction: balanced,
+                });
+            }
+        }
+        Status::Several => {}
+        Status::None => session.problems += 1,
+    }
+    Ok(())
+}
+
+/// `/dope OXIDE [SITE]`
+pub(super) fn dope(
+    session: &mut Session,
+    args: &Args<'_>,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let Some(slot) = session.host.clone() else {
+        return Err(args
+            .usage_error(
+                None,
+                "no host yet: `/dope` proposes reactions for the session's host",
+            )
+            .with_help("set one with `/host ZrO2`, then e.g. `/dope Y2O3`")
+            .into());
+    };
+    let host = &slot.host;
+    let (oxide, oxide_span, site) = match args.words.as_slice() {
+        [(oxide, span)] => (*oxide, span.clone(), None),
+        [(oxide, span), site] => (*oxide, span.clone(), Some(site.clone())),
+        _ => {
+            return Err(args
+                .usage_error(None, "`/dope` takes a dopant and optionally a site")
+                .with_help("e.g. `/dope Y2O3`, `/dope Nb2O5 Ti` or `/dope Li+ i`")
+                .into());
+        }
+    };
+    let dopant = parse_dopant(oxide, host).map_err(|d| at_word(*d, &oxide_span))?;
+    let mut options = DopeOptions::default();
+    if let Some((text, span)) = &site {
+        options.site = Some(parse_site(text, host).map_err(|d| at_word(*d, span))?);
+    }
+    // A host the proposer cannot use is no fault of the words typed: point at the command.
+    let report = mechanisms(host, &dopant, &options).map_err(|d| {
+        let mut d = *d;
+        d.span = args.command.clone();
+        d.line = 0;
+        d
+    })?;
+    write_report(
+        out,
+        session.palette,
+        &TableInput {
+            host,
+            dopant: &dopant,
+            report: &report,
+            style: Style::Unicode,
+            integers: false,
+        },
+        &|name| {
+            format!(
+                "`lacuna dope {} {oxide} --cn {name}=N` overrides it",
+                slot.spec
+            )
+        },
+    )?;
+    if report.mechanisms.is_empty() {
+        return Err(Diagnostic::new(
+            Code::CannotBalance,
+            oxide_span,
+            format!(
+                "no incorporation mechanism of {} in {} balances{}",
+                dopant.ion(),
+                host.formula_text,
+                if site.is_some() { " on that site" } else { "" }
+            ),
+        )
+        .with_help("try another site, or check the host's formal charges")
+        .into());
+    }
+    writeln!(
+        out,
+        "To keep one, type or paste its reaction; it is checked and numbered like any other."
+    )?;
+    Ok(())
+}
+
+/// The session read as a model file: the document, and the line of each
+/// entry's reaction in it.
+fn session_document(session: &Session) -> (Document, Vec<u32>) {
+    let (text, lines) = file_text_with_lines(session);
+    (model::read("session", &text, None), lines)
+}
+
+/// Prints a diagnostic of the session document: on an entry's line it is
+/// shown as that reaction's, elsewhere (model lines kept from a loaded file)
+/// as the session's line as `/save` would write it.
+fn print_session_diagnostic(
+    session: &Session,
+    out: &mut dyn Write,
+    doc: &Document,
+    lines: &[u32],
+    d: &Diagnostic,
+) -> std::io::Result<()> {
+    let text = doc.line_text(d.line);
+    match lines.iter().position(|&l| l == d.line && l > 0) {
+        Some(i) => {
+            let d = d.clone().locate(1, text);
+            write_diagnostic(
+                out,
+                session.palette,
+                &format!("reaction {}", i + 1),
+                text,
+                &d,
+            )
+        }
+        None => write_diagnostic(
+            out,
+            session.palette,
+            "session (as `/save` writes it)",
+            text,
+            d,
+        ),
+    }
+}
+
+/// `/law [WHICH...|all]`
+pub(super) fn law(
+    session: &mut Session,
+    args: &Args<'_>,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    let chosen = session.select(args, &args.words)?;
+    if chosen.is_empty() {
+        writeln!(out, "no reactions yet")?;
+        return Ok(());
+    }
+    let (doc, lines) = session_document(session);
+    let temperature = doc.temperature.map(|(t, _)| t);
+    let mut refused = 0;
+    for i in chosen {
+        let line = lines.get(i).copied().unwrap_or(0);
+        let place = format!("reaction {}", i + 1);
+        let Some(r) = doc.reactions.iter().find(|r| r.line == line) else {
+            continue;
+        };
+        let text = doc.line_text(line);
+        if !r.ok {
+            refused += 1;
+            let help = if r.host.is_none() {
+                "set the host with `/host ZrO2`: without it the sites and charges cannot be checked"
+            } else {
+                "`/check` shows the problems; the law of an unbalanced reaction would be wrong"
+            };
+            let d = Diagnostic::new(
+                Code::NoLaw,
+                r.reaction.span.clone(),
+                "no mass-action law is written for a reaction that does not pass its checks",
+            )
+            .with_help(help)
+            .locate(1, text);
+            write_diagnostic(out, session.palette, &place, text, &d)?;
+            continue;
+        }
+        let Ok(law) = mass_action_law(&r.reaction, r.label.as_deref()) else {
+            refused += 1;
+            let d = Diagnostic::new(
+                Code::Number,
+                r.reaction.span.clone(),
+                "the exponents of this law grew beyond the exact range",
+            )
+            .with_help("scale the coefficients down")
+            .locate(1, text);
+            write_diagnostic(out, session.palette, &place, text, &d)?;
+            continue;
+        };
+        let data: Vec<&DataLine> = match &r.label {
+            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
+            None => Vec::new(),
+        };
+        let thermo = match model::resolve_thermo(&data, temperature, r.line) {
+            Ok(t) => t.map(|(t, _)| t),
+            Err((at, d)) => {
+                print_session_diagnostic(
+                    session,
+                    out,
+                    &doc,
+                    &lines,
+                    &d.locate(at, doc.line_text(at)),
+                )?;
+                None
+            }
+        };
+        let host = r
+            .host
+            .and_then(|h| doc.hosts.get(h))
+            .map(|(h, _)| h.formula_text.clone());
+        write_law_text(
+            out,
+            &law,
+            thermo.as_ref(),
+            temperature,
+            host.as_deref(),
+            &place,
+            Style::Unicode,
+        )?;
+    }
+    if refused > 0 {
+        session.problems += 1;
+    }
+    Ok(())
+}
+
+/// `/brouwer [WHICH...|all]`
+pub(super) fn brouwer(
+    session: &mut Session,
+    args: &Args<'_>,
+    out: &mut dyn Write,
+) -> Result<(), Failure> {
+    if session.entries.is_empty() {
+        return Err(args
+            .usage_error(None, "the session has no reactions to build a model from")
+            .with_help("type the defect reactions, e.g. `red: O_O -> V_O.. + 2e' + 1/2 O2(g)` and `gap: nil -> e' + h.`, or `/load` a model file")
+            .into());
+    }
+    let chosen = session.select(args, &args.words)?;
+    let host = one_host(session, args, &chosen)?;
+    let (mut doc, lines) = session_document(session);
+    let unreadable = keep_only(&mut doc, &lines, &chosen);
+    doc.hosts = vec![(host.clone(), 0)];
+    let overrides = Overrides::for_slopes(&doc);
+    let model = match Model::build(&doc, overrides) {
+        Ok(m) => m,
+        Err(diagnostics) => {
+            for d in &diagnostics {
+                print_session_diagnostic(session, out, &doc, &lines, d)?;
+            }
+            writeln!(out, "no model: nothing was solved")?;
+            session.problems += 1;
+            return Ok(());
+        }
+    };
+    let tags: Vec<String> = chosen.iter().map(|&i| session.entry_tag(i)).collect();
+    // Ordered along pO2 when K is known at a temperature; else why not.
+    let ordered = if overrides.slopes_only {
+        Err("the session has no K values (no `K`, `dH` or `dS` lines)".to_string())
+    } else {
+        model
+            .require_temperature()
+            .and_then(|t| model.ln_k(t).map(|_| t))
+            .map_err(|d| format!("{} ({})", d.message, d.help.unwrap_or_default()))
+    };
+    let when = match &ordered {
+        Ok(t) => format!(" at {}", temperature_text(*t)),
+        Err(_) => String::new(),
+    };
+    writeln!(
+        out,
+        "model       {} on host {}{when}",
+        tags.join(" "),
+        host.formula_text
+    )?;
+    writeln!(out, "neutrality  {}", model.neutrality(Style::Unicode))?;
+    for t in &model.totals {
+        writeln!(out, "fixed       {}: {}", t.subject_unicode, t.description)?;
+    }
+    // The temperature and K were checked above: what is left is the exact
+    // range of the slopes, a problem of the whole model.
+    let located = |d: Diagnostic| {
+        let mut d = d;
+        d.span = args.command.clone();
+        d.line = 0;
+        Failure::User(vec![d])
+    };
+    match ordered {
+        Ok(t) => {
+            let regimes = regimes::regimes(&model, Sweep::Po2 { temperature: t }, model.po2_range)
+                .map_err(located)?;
+            write!(
+                out,
+                "{}",
+                regimes::regimes_table(&model, &regimes, Along::Po2)
+            )?;
+        }
+        Err(why) => {
+            let regimes: Vec<Regime> = regimes::all_regimes(&model)
+                .map_err(located)?
+                .into_iter()
+                .map(|(dominance, laws)| Regime {
+                    dominance,
+                    laws,
+                    // Not known without K: the unordered table shows no range.
+                    from: f64::NAN,
+                    to: f64::NAN,
+                })
+                .collect();
+            if regimes.is_empty() {
+                writeln!(
+                    out,
+                    "\nno regime can be solved: the reactions do not fix every concentration"
+                )?;
+                session.problems += 1;
+                return Ok(());
+            }
+            write!(
+                out,
+                "{}",
+                regimes::regimes_table(&model, &regimes, Along::Unordered)
+            )?;
+            writeln!(
+                out,
+                "note: {why}: these are the exact slopes of every regime the reactions allow; K values are needed to order the regimes along pO₂ and to tell which of them occur"
+            )?;
+            writeln!(
+                out,
+                "note: load a model file with `K`, `dH`/`dS` and `temperature` lines (grammar/model.md), or run `lacuna brouwer` on one"
+            )?;
+        }
+    }
+    if model.oxygen().is_none() {
+        writeln!(
+            out,
+            "note: no reaction exchanges O2(g), so no concentration depends on pO₂ and every slope is 0"
+        )?;
+    }
+    if overrides.slopes_only {
+        // Every reaction became an equilibrium: one with a pure phase pins
+        // the dopant at its solubility limit, which is easy to miss.
+        let with_phase = |i: usize| {
+            model.equilibria.iter().any(|e| {
+                Some(&e.line) == lines.get(i)
+                    && e.law.factors.iter().any(|f| f.kind == FactorKind::Phase)
+            })
+        };
+        let others: Vec<String> = chosen
+            .iter()
+            .filter(|&&i| !with_phase(i))
+            .map(|i| (i + 1).to_string())
+            .collect();
+        for e in &model.equilibria {
+            let phases: Vec<&str> = e
+                .law
+                .factors
+                .iter()
+                .filter(|f| f.kind == FactorKind::Phase)
+                .map(|f| f.species.as_str())
+                .collect();
+            if phases.is_empty() {
+                continue;
+            }
+            writeln!(
+                out,
+                "note: `{}` is taken as an equilibrium with pure {}: the dopant at its solubility limit, not at a fixed level; to fix the level, load a model with a `fix` line, or leave the reaction out{}",
+                e.label,
+                phases.join(", "),
+                if others.is_empty() || others.len() == chosen.len() {
+                    String::new()
+                } else {
+                    format!(" (`/brouwer {}`)", others.join(" "))
+                }
+            )?;
+        }
+    }
+    if unreadable > 0 {
+        writeln!(
+            out,
+            "note: left out {unreadable} line{} of a loaded file that did not read as a reaction",
+            if unreadable == 1 { "" } else { "s" }
+        )?;
+    }
+    if !model.reference_only.is_empty() {
+        writeln!(
+            out,
+            "note: shown for reference only (no data): {}",
+            model.reference_only.join(", ")
+        )?;
+    }
+    Ok(())
+}
+
+/// The one host of the chosen reactions, or an error saying what to do.
+fn one_host(session: &Session, args: &Args<'_>, chosen: &[usize]) -> Result<Host, Failure> {
+    let mut host: Option<(usize, &Host)> = None;
+    for &i in chosen {
+        let Some(slot) = session.entries[i].host.as_ref() else {
+            return Err(args
+                .usage_error(
+                    None,
+                    format!(
+                        "{} has no host, and a model needs one",
+                        session.entry_tag(i)
+                    ),
+                )
+                .with_help(
+                    "set one with `/host ZrO2`; the reactions typed so far are checked again then",
+                )
+                .into());
+        };
+        match host {
+            None => host = Some((i, &slot.host)),
+            Some((first, h)) if *h != slot.host => {
+                return Err(args
+                    .usage_error(
+                        None,
+                        format!(
+                            "{} is in {} but {} in {}: a model has one host",
+                            session.entry_tag(first),
+                            h.formula_text,
+                            session.entry_tag(i),
+                            slot.host.formula_text
+                        ),
+                    )
+                    .with_help(format!(
+                        "name the reactions of one host, e.g. `/brouwer {}` (`/list` shows them by host)",
+                        same_host(session, chosen, h)
+                    ))
+                    .into());
+            }
+            Some(_) => {}
+        }
+    }
+    host.map(|(_, h)| h.clone()).ok_or_else(|| {
+        args.usage_error(None, "no reactions chosen")
+            .with_help("`/list` shows them")
+            .into()
+    })
+}
+
+/// The numbers of the chosen entries on `host`, for a suggestion.
+fn same_host(session: &Session, chosen: &[usize], host: &Host) -> String {
+    chosen
+        .iter()
+        .filter(|&&i| {
+            session.entries[i]
+                .host
+                .as_ref()
+                .is_some_and(|s| s.host == *host)
+        })
+        .map(|i| (i + 1).to_string())
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Keeps the chosen entries' reactions in the document, with their data
+/// lines and the lines that are not reactions; the other reactions, their
+/// data and their problems are dropped. Lines kept from a loaded file
+/// because they did not parse are no reactions of the session: they are
+/// dropped too, and their number returned so that it can be said.
+fn keep_only(doc: &mut Document, lines: &[u32], chosen: &[usize]) -> usize {
+    let unreadable = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
+        .filter(|n| {
+            !lines.contains(n)
+                && matches!(
+                    crate::file::reader::classify(doc.line_text(*n)),
+                    crate::file::reader::Line::Reaction { .. }
+                )
+        })
+        .count();
+    let kept: Vec<u32> = chosen
+        .iter()
+        .filter_map(|&i| lines.get(i).copied())
+        .collect();
+    let is_other_reaction = |n: u32| {
+        !kept.contains(&n)
+            && matches!(
+                crate::file::reader::classify(doc.line_text(n)),
+                crate::file::reader::Line::Reaction { .. }
+            )
+    };
+    let dropped_labels: Vec<String> = doc
+        .reactions
+        .iter()
+        .filter(|r| !kept.contains(&r.line))
+        .filter_map(|r| r.label.clone())
+        .collect();
+    let mut dropped_lines: Vec<u32> = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
+        .filter(|&n| is_other_reaction(n))
+        .collect();
+    dropped_lines.extend(
+        doc.data
+            .iter()
+            .filter(|d| dropped_labels.contains(&d.label))
+            .map(|d| d.line),
+    );
+    doc.reactions.retain(|r| kept.contains(&r.line));
+    doc.data.retain(|d| !dropped_labels.contains(&d.label));
+    doc.diagnostics.retain(|d| !dropped_lines.contains(&d.line));
+    unreadable
+}

@@ -1,0 +1,1013 @@
+//! Runs the checker over reaction sources and streams reports to a sink.
+//!
+//! In: named sources (files, stdin, inline text) and a default host. Out:
+//! one `ReactionReport` per reaction and one call per problem on a
+//! non-reaction line, in source order, then a `Summary`. Memory does not grow
+//! with the length of a file: each line is read, checked, reported and dropped
+//! (`check_reader`), or each chunk of lines (`check_reader_parallel`, which
+//! parses and checks a file's lines on all cores and reports them in order).
+
+use crate::base::diagnostic::{Code, Diagnostic, Severity};
+use crate::check::rules::{FileLints, Levels, ReactionFacts};
+use crate::check::{Verdict, check_reaction};
+use crate::file::reader::{Line, classify};
+use crate::host::Host;
+use crate::notation::latex_input::{Normalised, looks_like_latex, normalise};
+use crate::notation::{Reaction, Span, parse_reaction};
+use std::io::{self, BufRead};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::mpsc;
+
+/// Everything known about one reaction line after checking it.
+#[derive(Debug)]
+pub struct ReactionReport<'a> {
+    /// The source's name: a path, `<stdin>` or `<inline>`.
+    pub source: &'a str,
+    pub line: u32,
+    /// The whole line as read.
+    pub line_text: &'a str,
+    pub label: Option<&'a str>,
+    /// The reaction's own text (without label and comment).
+    pub text: &'a str,
+    /// The parsed reaction; `None` when it did not parse.
+    pub reaction: Option<Reaction>,
+    /// The checker's verdict; `None` when the reaction did not parse.
+    pub verdict: Option<Verdict>,
+    /// Parse and check diagnostics, located (line and column set).
+    pub diagnostics: Vec<Diagnostic>,
+    /// The host the reaction was checked against.
+    pub host: Option<Arc<Host>>,
+}
+
+impl ReactionReport<'_> {
+    /// False when a balance fails or any error was reported.
+    pub fn ok(&self) -> bool {
+        self.verdict.as_ref().is_some_and(Verdict::ok)
+            && !self.diagnostics.iter().any(Diagnostic::is_error)
+    }
+}
+
+/// Receives reports as they are produced.
+pub trait Sink {
+    fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()>;
+    /// A problem on a line that is not a reaction (a host declaration, an
+    /// unknown keyword, bad encoding), or not tied to a line at all (line 0).
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()>;
+    fn finish(&mut self, summary: &Summary) -> io::Result<()>;
+    /// Whether reactions with no diagnostics are printed at all; when not,
+    /// the engine may skip building their reports.
+    fn wants_passing(&self) -> bool {
+        true
+    }
+}
+
+/// Totals over everything checked.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Summary {
+    pub sources: u64,
+    pub reactions: u64,
+    pub failed: u64,
+    pub errors: u64,
+    pub warnings: u64,
+}
+
+impl Summary {
+    /// True when nothing failed and no error was reported anywhere.
+    pub fn clean(&self) -> bool {
+        self.failed == 0 && self.errors == 0
+    }
+
+    fn count(&mut self, diagnostics: &[Diagnostic]) {
+        for d in diagnostics {
+            match d.severity {
+                Severity::Error => self.errors += 1,
+                Severity::Warning => self.warnings += 1,
+                Severity::Note => {}
+            }
+        }
+    }
+}
+
+/// Checks reaction sources one after another, keeping per-source state.
+pub struct Checker<'s> {
+    default_host: Option<Arc<Host>>,
+    levels: Levels,
+    sink: &'s mut dyn Sink,
+    pub summary: Summary,
+}
+
+/// State that lives for one source: the host in force and the cross-line rules.
+struct SourceState {
+    hosts: HostState,
+    lints: FileLints,
+    /// What reported lines leave behind, to be dropped later (elsewhere).
+    leftovers: Vec<Leftover>,
+}
+
+/// The owned parts of a reaction report after the sink has seen it.
+type Leftover = (Option<Reaction>, Option<Verdict>, Vec<Diagnostic>);
+
+impl SourceState {
+    fn new(default_host: Option<Arc<Host>>) -> SourceState {
+        SourceState {
+            hosts: HostState {
+                host: default_host,
+                broken_host_line: None,
+            },
+            lints: FileLints::default(),
+            leftovers: Vec::new(),
+        }
+    }
+}
+
+/// The host in force at a line, as the `host` lines above it left it.
+#[derive(Clone)]
+struct HostState {
+    host: Option<Arc<Host>>,
+    /// The line of a `host` declaration that failed, so later reactions say why they have no host.
+    broken_host_line: Option<u32>,
+}
+
+impl HostState {
+    fn declare(&mut self, line: u32, result: &Result<Arc<Host>, Vec<Diagnostic>>) {
+        match result {
+            Ok(host) => {
+                self.host = Some(host.clone());
+                self.broken_host_line = None;
+            }
+            Err(_) => {
+                self.host = None;
+                self.broken_host_line = Some(line);
+            }
+        }
+    }
+}
+
+/// A line after the work that needs no cross-line state.
+enum Prepared {
+    /// Blank or comment line.
+    Skip,
+    /// A model line; the span of the reaction name it refers to, if any (rule L504).
+    Model(Option<Span>),
+    /// A `host` line; its diagnostics are not yet located.
+    Host(Result<Arc<Host>, Vec<Diagnostic>>),
+    /// Not UTF-8 (the diagnostic is located).
+    Encoding(Diagnostic),
+    Reaction(Box<PreparedReaction>),
+}
+
+/// A reaction line parsed and checked, before the cross-line rules.
+struct PreparedReaction {
+    label: Option<Span>,
+    reaction: Span,
+    parsed: Option<Reaction>,
+    /// Parse and check diagnostics, not yet located.
+    diagnostics: Vec<Diagnostic>,
+    verdict: Option<Verdict>,
+    /// The plain notation read from LaTeX, when the line was LaTeX.
+    latex: Option<Normalised>,
+    /// What the cross-line rules need, when the reaction parsed.
+    facts: Option<ReactionFacts>,
+}
+
+/// The reaction name a `K`, `dH` or `dS` model line refers to.
+fn model_reference(text: &str, keyword: Span, rest: Span) -> Option<Span> {
+    if !matches!(text.get(keyword), Some("K" | "dH" | "dS")) {
+        return None;
+    }
+    let after = text.get(rest.clone())?;
+    let trimmed = after.trim_start();
+    let start = rest.start + (after.len() - trimmed.len());
+    let len = trimmed
+        .find(|c: char| c.is_whitespace() || c == '=')
+        .unwrap_or(trimmed.len());
+    (len > 0).then(|| start..start + len)
+}
+
+/// A line without its line ending.
+fn line_content(buffer: &[u8]) -> &[u8] {
+    let bytes = buffer.strip_suffix(b"\n").unwrap_or(buffer);
+    bytes.strip_suffix(b"\r").unwrap_or(bytes)
+}
+
+/// Classifies, parses and checks one line against the host in force.
+fn prepare_line(number: u32, bytes: &[u8], hosts: &HostState) -> Prepared {
+    let text = match std::str::from_utf8(bytes) {
+        Ok(text) => text,
+        Err(e) => {
+            let valid = String::from_utf8_lossy(bytes.get(..e.valid_up_to()).unwrap_or_default())
+                .into_owned();
+            return Prepared::Encoding(
+                Diagnostic::new(
+                    Code::Encoding,
+                    valid.len()..valid.len() + 1,
+                    format!(
+                        "line {number} is not valid UTF-8 (byte {} of the line)",
+                        e.valid_up_to() + 1
+                    ),
+                )
+                .with_help("save the file as UTF-8; the rest of the file is still checked")
+                .locate(number, &valid),
+            );
+        }
+    };
+    match classify(text) {
+        Line::Blank | Line::Comment => Prepared::Skip,
+        Line::Model { keyword, rest } => Prepared::Model(model_reference(text, keyword, rest)),
+        Line::Host(span) => Prepared::Host(Host::parse(text, span).map(Arc::new)),
+        Line::Reaction { label, reaction } => {
+            // LaTeX pasted from a manuscript is rewritten as plain notation
+            // first, unless the parser reads it as it is.
+            let (mut parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
+            let mut latex = None;
+            let latex_source = text.get(reaction.clone()).unwrap_or("");
+            if parsed.is_none() && looks_like_latex(latex_source) {
+                match normalise(latex_source) {
+                    Ok(n) => {
+                        let (p, d) = parse_reaction(&n.text, 0..n.text.len());
+                        parsed = p;
+                        diagnostics = d;
+                        diagnostics.extend(n.notes.iter().cloned());
+                        latex = Some(n);
+                    }
+                    Err(d) => diagnostics = vec![relocate_by(d, reaction.start)],
+                }
+            }
+            let verdict = parsed
+                .as_ref()
+                .map(|r| check_reaction(r, hosts.host.as_deref()));
+            if let Some(v) = &verdict {
+                for d in &v.diagnostics {
+                    if d.code == Code::NoHost {
+                        if let Some(line) = hosts.broken_host_line {
+                            diagnostics.push(
+                                Diagnostic::new(Code::NoHost, d.span.clone(), format!("no usable host: the host declaration on line {line} has errors"))
+                                    .with_help("fix that line; sites and effective charges are checked against it"),
+                            );
+                            continue;
+                        }
+                    }
+                    diagnostics.push(d.clone());
+                }
+            }
+            let facts = parsed.as_ref().map(|r| {
+                let named = label
+                    .clone()
+                    .map(|l| (text.get(l.clone()).unwrap_or(""), l));
+                ReactionFacts::of(named, r, hosts.host.as_deref())
+            });
+            Prepared::Reaction(Box::new(PreparedReaction {
+                label,
+                reaction,
+                parsed,
+                diagnostics,
+                verdict,
+                latex,
+                facts,
+            }))
+        }
+    }
+}
+
+/// Lines read per chunk by `check_reader_parallel`.
+const CHUNK_LINES: usize = 256;
+
+/// Consecutive lines of a source, read into one buffer.
+#[derive(Default)]
+struct Chunk {
+    bytes: Vec<u8>,
+    /// Each line's range in `bytes`, line ending excluded.
+    ranges: Vec<std::ops::Range<usize>>,
+    first_number: u32,
+}
+
+impl Chunk {
+    /// Reads up to `CHUNK_LINES` lines into the buffers of `reuse`.
+    fn read(reader: &mut impl BufRead, first_number: u32, reuse: Chunk) -> io::Result<Chunk> {
+        let mut chunk = reuse;
+        chunk.bytes.clear();
+        chunk.ranges.clear();
+        chunk.first_number = first_number;
+        while chunk.ranges.len() < CHUNK_LINES {
+            let start = chunk.bytes.len();
+            if reader.read_until(b'\n', &mut chunk.bytes)? == 0 {
+                break;
+            }
+            let length = line_content(&chunk.bytes[start..]).len();
+            chunk.ranges.push(start..start + length);
+        }
+        Ok(chunk)
+    }
+
+    fn count(&self) -> u32 {
+        u32::try_from(self.ranges.len()).unwrap_or(u32::MAX)
+    }
+
+    fn is_empty(&self) -> bool {
+        self.ranges.is_empty()
+    }
+
+    /// (line number, byte range) of each line.
+    fn lines(&self) -> impl Iterator<Item = (u32, std::ops::Range<usize>)> + '_ {
+        (self.first_number..).zip(self.ranges.iter().cloned())
+    }
+
+    /// Finds the chunk's `host` lines (rare; in order, on one thread) so
+    /// that every other line can then be prepared on any thread against the
+    /// host in force at it. `hosts` is the state before the first line.
+    fn plan(self, mut hosts: HostState) -> ChunkPlan {
+        let mut declared: Vec<(usize, Prepared)> = Vec::new();
+        let mut segments: Vec<(usize, HostState)> = vec![(0, hosts.clone())];
+        for (index, (number, range)) in self.lines().enumerate() {
+            let bytes = self.bytes.get(range).unwrap_or_default();
+            if !may_be_host_line(bytes) {
+                continue;
+            }
+            let Ok(text) = std::str::from_utf8(bytes) else {
+                continue;
+            };
+            if let Line::Host(span) = classify(text) {
+                let result = Host::parse(text, span).map(Arc::new);
+                hosts.declare(number, &result);
+                segments.push((index + 1, hosts.clone()));
+                declared.push((index, Prepared::Host(result)));
+            }
+        }
+        ChunkPlan {
+            chunk: self,
+            declared,
+            segments,
+            hosts_after: hosts,
+            next_block: AtomicUsize::new(0),
+        }
+    }
+}
+
+/// Lines handed out to a preparing thread at a time.
+const BLOCK_LINES: usize = 32;
+
+/// A chunk ready to be prepared by several threads at once.
+struct ChunkPlan {
+    chunk: Chunk,
+    /// (index, prepared) of the chunk's host lines, by increasing index.
+    declared: Vec<(usize, Prepared)>,
+    /// (first index, host in force from there on), by increasing index.
+    segments: Vec<(usize, HostState)>,
+    hosts_after: HostState,
+    /// The next block of lines no thread has claimed.
+    next_block: AtomicUsize,
+}
+
+impl ChunkPlan {
+    /// Claims blocks of lines until none are left and prepares them;
+    /// returns (block number, prepared lines) for each block claimed.
+    fn work(&self) -> Vec<(usize, Vec<Prepared>)> {
+        let ranges = &self.chunk.ranges;
+        let mut done = Vec::new();
+        loop {
+            let block = self.next_block.fetch_add(1, Ordering::Relaxed);
+            let start = block.saturating_mul(BLOCK_LINES);
+            let Some(lines) = ranges.get(start..(start + BLOCK_LINES).min(ranges.len())) else {
+                return done;
+            };
+            if lines.is_empty() {
+                return done;
+            }
+            let prepared = lines
+                .iter()
+                .enumerate()
+                .map(|(offset, range)| self.prepare(start + offset, range.clone()))
+                .collect();
+            done.push((block, prepared));
+        }
+    }
+
+    fn prepare(&self, index: usize, range: std::ops::Range<usize>) -> Prepared {
+        if self
+            .declared
+            .binary_search_by_key(&index, |(i, _)| *i)
+            .is_ok()
+        {
+            return Prepared::Skip;
+        }
+        let at = self.segments.partition_point(|(start, _)| *start <= index);
+        let Some((_, hosts)) = self.segments.get(at.saturating_sub(1)) else {
+            return Prepared::Skip;
+        };
+        let offset = u32::try_from(index).unwrap_or(u32::MAX);
+        let number = self.chunk.first_number.saturating_add(offset);
+        prepare_line(
+            number,
+            self.chunk.bytes.get(range).unwrap_or_default(),
+            hosts,
+        )
+    }
+
+    /// Puts the blocks the threads prepared, as (block, thread, lines),
+    /// back in order.
+    fn assemble(self, mut blocks: Vec<(usize, usize, Vec<Prepared>)>) -> PreparedChunk {
+        blocks.sort_unstable_by_key(|(block, _, _)| *block);
+        let mut lines: Vec<Prepared> = Vec::with_capacity(self.chunk.ranges.len());
+        let mut owners = Vec::with_capacity(blocks.len());
+        for (_, owner, block) in blocks {
+            lines.extend(block);
+            owners.push(owner);
+        }
+        for (index, prepared) in self.declared {
+            if let Some(slot) = lines.get_mut(index) {
+                *slot = prepared;
+            }
+        }
+        PreparedChunk {
+            chunk: self.chunk,
+            lines,
+            owners,
+            hosts_after: self.hosts_after,
+        }
+    }
+}
+
+/// Whether a line could be a `host` declaration (cheap; false only when it
+/// certainly is not).
+fn may_be_host_line(bytes: &[u8]) -> bool {
+    let start = bytes
+        .iter()
+        .position(|b| !b.is_ascii_whitespace())
+        .unwrap_or(bytes.len());
+    match bytes.get(start) {
+        Some(b) if !b.is_ascii() => true,
+        _ => bytes.get(start..).unwrap_or_default().starts_with(b"host"),
+    }
+}
+
+/// A chunk with every line prepared, and the host in force after it.
+struct PreparedChunk {
+    chunk: Chunk,
+    lines: Vec<Prepared>,
+    /// Which thread prepared each block of lines: 0 the reporting thread,
+    /// h + 1 helper h.
+    owners: Vec<usize>,
+    hosts_after: HostState,
+}
+
+/// Work for a helper thread: a chunk to prepare, and memory it allocated
+/// earlier to free.
+struct Job {
+    plan: Arc<ChunkPlan>,
+    garbage: Vec<Leftover>,
+}
+
+/// The reporting thread's handle on a helper thread.
+struct Helper {
+    jobs: mpsc::Sender<Job>,
+    results: mpsc::Receiver<Vec<(usize, Vec<Prepared>)>>,
+    /// What the helper prepared and the reports are done with.
+    garbage: Vec<Leftover>,
+}
+
+impl<'s> Checker<'s> {
+    pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
+        Checker {
+            default_host: default_host.map(Arc::new),
+            levels: Levels::default(),
+            sink,
+            summary: Summary::default(),
+        }
+    }
+
+    /// Sets the rule levels (from `lacuna.toml` and the command line).
+    pub fn with_levels(mut self, levels: Levels) -> Self {
+        self.levels = levels;
+        self
+    }
+
+    /// Checks a reaction file (or stdin) read line by line; each line is
+    /// reported as soon as it is read, so interactive input streams.
+    pub fn check_reader(&mut self, name: &str, mut reader: impl BufRead) -> io::Result<()> {
+        self.summary.sources += 1;
+        let mut state = SourceState::new(self.default_host.clone());
+        let mut buffer = Vec::with_capacity(256);
+        let mut number: u32 = 0;
+        loop {
+            buffer.clear();
+            if reader.read_until(b'\n', &mut buffer)? == 0 {
+                break;
+            }
+            number = number.saturating_add(1);
+            let bytes = line_content(&buffer);
+            let prepared = prepare_line(number, bytes, &state.hosts);
+            if let Prepared::Host(result) = &prepared {
+                state.hosts.declare(number, result);
+            }
+            self.finish_line(name, number, bytes, prepared, &mut state)?;
+            state.leftovers.clear();
+        }
+        self.finish_source(name, &mut state)
+    }
+
+    /// What can only be said once a whole source is read: model lines that
+    /// name no reaction of the file.
+    fn finish_source(&mut self, name: &str, state: &mut SourceState) -> io::Result<()> {
+        for (line_text, diagnostic) in state.lints.unresolved_references() {
+            let mut diagnostics = vec![diagnostic];
+            self.levels.apply(&mut diagnostics, &line_text);
+            for d in diagnostics {
+                self.summary.count(std::slice::from_ref(&d));
+                self.sink.line_problem(name, &line_text, &d)?;
+            }
+        }
+        Ok(())
+    }
+
+    /// Checks a reaction file like `check_reader`, with the work that needs
+    /// no cross-line state (parsing, the three balances, hashing for the
+    /// cross-line rules) spread over all cores a chunk of lines at a time.
+    /// Reports come out in the same order and are the same as
+    /// `check_reader`'s; memory stays bounded by the chunk size. For files,
+    /// not for interactive input: a chunk is reported when it is full.
+    pub fn check_reader_parallel(&mut self, name: &str, reader: impl BufRead) -> io::Result<()> {
+        let helpers = std::thread::available_parallelism()
+            .map_or(1, |n| n.get())
+            .saturating_sub(1);
+        if helpers == 0 {
+            return self.check_reader(name, reader);
+        }
+        std::thread::scope(|scope| {
+            let mut crew = Vec::with_capacity(helpers);
+            for _ in 0..helpers {
+                let (jobs, inbox) = mpsc::channel::<Job>();
+                let (outbox, results) = mpsc::channel::<Vec<(usize, Vec<Prepared>)>>();
+                scope.spawn(move || {
+                    for Job { plan, garbage } in inbox {
+                        drop(garbage);
+                        let blocks = plan.work();
+                        // Let go of the plan before answering, so that the
+                        // reporting thread owns it again.
+                        drop(plan);
+                        if outbox.send(blocks).is_err() {
+                            return;
+                        }
+                    }
+                });
+                crew.push(Helper {
+                    jobs,
+                    results,
+                    garbage: Vec::new(),
+                });
+            }
+            self.check_chunks(name, reader, &mut crew)
+        })
+    }
+
+    /// The reporting side of `check_reader_parallel`: reads chunks, hands
+    /// each to the crew (and works on it too), and reports the previous one
+    /// meanwhile.
+    fn check_chunks(
+        &mut self,
+        name: &str,
+        mut reader: impl BufRead,
+        crew: &mut [Helper],
+    ) -> io::Result<()> {
+        self.summary.sources += 1;
+        let mut state = SourceState::new(self.default_host.clone());
+        let mut next_number: u32 = 1;
+        let mut pending: Option<PreparedChunk> = None;
+        let mut spare = Chunk::default();
+        let crew_failed = || io::Error::other("a checking thread stopped");
+        loop {
+            let chunk = Chunk::read(&mut reader, next_number, std::mem::take(&mut spare))?;
+            next_number = next_number.saturating_add(chunk.count());
+            let done = chunk.is_empty();
+            // The host in force at the chunk's start is the one at the end of
+            // the previous chunk, known before that chunk is reported.
+            let hosts = pending.as_ref().map_or_else(
+                || state.hosts.clone(),
+                |p: &PreparedChunk| p.hosts_after.clone(),
+            );
+            let plan = Arc::new(chunk.plan(hosts));
+            // Memory is freed fastest by the thread that allocated it, so what
+            // a helper prepared goes back to it to be dropped.
+            for helper in crew.iter_mut() {
+                let job = Job {
+                    plan: Arc::clone(&plan),
+                    garbage: std::mem::take(&mut helper.garbage),
+                };
+                helper.jobs.send(job).map_err(|_| crew_failed())?;
+            }
+            if let Some(p) = pending.take() {
+                spare = self.finish_chunk(name, p, &mut state, crew)?;
+            }
+            let mut blocks: Vec<(usize, usize, Vec<Prepared>)> = plan
+                .work()
+                .into_iter()
+                .map(|(block, lines)| (block, 0, lines))
+                .collect();
+            for (index, helper) in crew.iter().enumerate() {
+                let done = helper.results.recv().map_err(|_| crew_failed())?;
+                blocks.extend(
+                    done.into_iter()
+                        .map(|(block, lines)| (block, index + 1, lines)),
+                );
+            }
+            if done {
+                return self.finish_source(name, &mut state);
+            }
+            let plan = Arc::try_unwrap(plan).map_err(|_| crew_failed())?;
+            pending = Some(plan.assemble(blocks));
+        }
+    }
+
+    /// Reports a prepared chunk; returns its buffers for the next read.
+    fn finish_chunk(
+        &mut self,
+        name: &str,
+        chunk: PreparedChunk,
+        state: &mut SourceState,
+        crew: &mut [Helper],
+    ) -> io::Result<Chunk> {
+        let PreparedChunk {
+            chunk,
+            lines,
+            owners,
+            ..
+        } = chunk;
+        for (index, ((number, range), prepared)) in chunk.lines().zip(lines).enumerate() {
+            let bytes = chunk.bytes.get(range).unwrap_or_default();
+            if let Prepared::Host(result) = &prepared {
+                state.hosts.declare(number, result);
+            }
+            self.finish_line(name, number, bytes, prepared, state)?;
+            let owner = owners.get(index / BLOCK_LINES).copied().unwrap_or(0);
+            if let Some(helper) = owner.checked_sub(1).and_then(|h| crew.get_mut(h)) {
+                helper.garbage.append(&mut state.leftovers);
+            } else {
+                state.leftovers.clear();
+            }
+        }
+        Ok(chunk)
+    }
+
+    /// Checks reactions given as text (several lines allowed), as from `--reaction`.
+    pub fn check_text(&mut self, name: &str, text: &str) -> io::Result<()> {
+        self.check_reader(name, text.as_bytes())
+    }
+
+    /// The part of a line's work that depends on what came before: the
+    /// cross-line rules, rule levels, totals and the sink.
+    fn finish_line(
+        &mut self,
+        name: &str,
+        number: u32,
+        bytes: &[u8],
+        prepared: Prepared,
+        state: &mut SourceState,
+    ) -> io::Result<()> {
+        match prepared {
+            Prepared::Skip | Prepared::Host(Ok(_)) => Ok(()),
+            Prepared::Model(reference) => {
+                // Model lines may name reactions written further down, so
+                // names are resolved when the whole source is read.
+                if let Some(span) = reference {
+                    let text = std::str::from_utf8(bytes).unwrap_or_default();
+                    state.lints.reference(number, text, span);
+                }
+                Ok(())
+            }
+            Prepared::Encoding(diagnostic) => {
+                let shown = String::from_utf8_lossy(bytes);
+                self.summary.count(std::slice::from_ref(&diagnostic));
+                self.sink.line_problem(name, &shown, &diagnostic)
+            }
+            Prepared::Host(Err(diagnostics)) => {
+                let text = std::str::from_utf8(bytes).unwrap_or_default();
+                let mut diagnostics: Vec<Diagnostic> = diagnostics
+                    .into_iter()
+                    .map(|d| d.locate(number, text))
+                    .collect();
+                self.levels.apply(&mut diagnostics, text);
+                for d in diagnostics {
+                    self.summary.count(std::slice::from_ref(&d));
+                    self.sink.line_problem(name, text, &d)?;
+                }
+                Ok(())
+            }
+            Prepared::Reaction(prepared) => {
+                let text = std::str::from_utf8(bytes).unwrap_or_default();
+                let PreparedReaction {
+                    label,
+                    reaction,
+                    parsed,
+                    mut diagnostics,
+                    verdict,
+                    latex,
+                    facts,
+                } = *prepared;
+                let host = state.hosts.host.clone();
+                if let Some(facts) = facts {
+                    let name = label.clone().and_then(|l| text.get(l));
+                    diagnostics.extend(state.lints.apply(number, name, facts));
+                }
+                if let Some(n) = &latex {
+                    diagnostics = diagnostics
+                        .into_iter()
+                        .map(|d| {
+                            if d.code == Code::DuplicateLabel {
+                                d
+                            } else {
+                                n.relocate(d, reaction.start)
+                            }
+                        })
+                        .collect();
+                }
+                let mut diagnostics: Vec<Diagnostic> = diagnostics
+                    .into_iter()
+                    .map(|d| d.locate(number, text))
+                    .collect();
+                self.levels.apply(&mut diagnostics, text);
+                let report = ReactionReport {
+                    source: name,
+                    line: number,
+                    line_text: text,
+                    label: label.and_then(|l| text.get(l)),
+                    text: text.get(reaction).unwrap_or(""),
+                    reaction: parsed,
+                    verdict,
+                    diagnostics,
+                    host,
+                };
+                self.summary.reactions += 1;
+                if !report.ok() {
+                    self.summary.failed += 1;
+                }
+                self.summary.count(&report.diagnostics);
+                if !report.diagnostics.is_empty() || self.sink.wants_passing() {
+                    self.sink.reaction(&report)?;
+                }
+                state
+                    .leftovers
+                    .push((report.reaction, report.verdict, report.diagnostics));
+                Ok(())
+            }
+        }
+    }
+
+    /// Reports a problem that belongs to no line (an unreadable file).
+    pub fn report_problem(&mut self, name: &str, diagnostic: Diagnostic) -> io::Result<()> {
+        self.summary.count(std::slice::from_ref(&diagnostic));
+        self.sink.line_problem(name, "", &diagnostic)
+    }
+
+    /// Adds totals of sources checked elsewhere (on other threads).
+    pub fn absorb(&mut self, summary: &Summary) {
+        self.summary.merge(summary);
+    }
+
+    /// The sink, for replaying recordings made on other threads.
+    pub fn sink(&mut self) -> &mut dyn Sink {
+        self.sink
+    }
+
+    /// Ends the run: hands the summary to the sink and returns it.
+    pub fn finish(self) -> io::Result<Summary> {
+        self.sink.finish(&self.summary)?;
+        Ok(self.summary)
+    }
+}
+
+fn relocate_by(mut d: Diagnostic, offset: usize) -> Diagnostic {
+    d.span = d.span.start + offset..d.span.end + offset;
+    d
+}
+
+/// A reaction report that owns its data, for checking files on other threads
+/// and replaying the results in a stable order.
+#[derive(Debug)]
+pub struct OwnedReport {
+    pub source: Arc<str>,
+    pub line: u32,
+    pub line_text: String,
+    pub label: Option<String>,
+    pub text: String,
+    pub reaction: Option<Reaction>,
+    pub verdict: Option<Verdict>,
+    pub diagnostics: Vec<Diagnostic>,
+    pub host: Option<Arc<Host>>,
+}
+
+/// What a `Recording` captured, in order.
+#[derive(Debug)]
+pub enum Event {
+    Reaction(Box<OwnedReport>),
+    Problem {
+        source: Arc<str>,
+        line_text: String,
+        diagnostic: Diagnostic,
+    },
+}
+
+/// A sink that keeps what it is given, to be replayed into another sink.
+#[derive(Debug, Default)]
+pub struct Recording {
+    pub events: Vec<Event>,
+    /// Keep reactions that pass too (the target sink prints them).
+    pub keep_passing: bool,
+}
+
+impl Sink for Recording {
+    fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()> {
+        if !self.keep_passing && report.diagnostics.is_empty() {
+            return Ok(());
+        }
+        self.events.push(Event::Reaction(Box::new(OwnedReport {
+            source: Arc::from(report.source),
+            line: report.line,
+            line_text: report.line_text.to_string(),
+            label: report.label.map(str::to_string),
+            text: report.text.to_string(),
+            reaction: report.reaction.clone(),
+            verdict: report.verdict.clone(),
+            diagnostics: report.diagnostics.clone(),
+            host: report.host.clone(),
+        })));
+        Ok(())
+    }
+
+    fn line_problem(
+        &mut self,
+        source: &str,
+        line_text: &str,
+        diagnostic: &Diagnostic,
+    ) -> io::Result<()> {
+        self.events.push(Event::Problem {
+            source: Arc::from(source),
+            line_text: line_text.to_string(),
+            diagnostic: diagnostic.clone(),
+        });
+        Ok(())
+    }
+
+    fn finish(&mut self, _summary: &Summary) -> io::Result<()> {
+        Ok(())
+    }
+
+    fn wants_passing(&self) -> bool {
+        self.keep_passing
+    }
+}
+
+impl Recording {
+    /// Sends every recorded event to `sink`, in the order recorded.
+    pub fn replay(self, sink: &mut dyn Sink) -> io::Result<()> {
+        for event in self.events {
+            match event {
+                Event::Reaction(r) => {
+                    let report = ReactionReport {
+                        source: &r.source,
+                        line: r.line,
+                        line_text: &r.line_text,
+                        label: r.label.as_deref(),
+                        text: &r.text,
+                        reaction: r.reaction,
+                        verdict: r.verdict,
+                        diagnostics: r.diagnostics,
+                        host: r.host,
+                    };
+                    sink.reaction(&report)?;
+                }
+                Event::Problem {
+                    source,
+                    line_text,
+                    diagnostic,
+                } => sink.line_problem(&source, &line_text, &diagnostic)?,
+            }
+        }
+        Ok(())
+    }
+}
+
+impl Summary {
+    /// Adds another run's totals to these.
+    pub fn merge(&mut self, other: &Summary) {
+        self.sources += other.sources;
+        self.reactions += other.reactions;
+        self.failed += other.failed;
+        self.errors += other.errors;
+        self.warnings += other.warnings;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Everything a run reports, as text, and its totals.
+    fn run(bytes: &[u8], parallel: bool) -> (String, Summary) {
+        let mut recording = Recording {
+            events: Vec::new(),
+            keep_passing: true,
+        };
+        let mut checker = Checker::new(None, &mut recording);
+        if parallel {
+            checker
+                .check_reader_parallel("f.kvr", bytes)
+                .expect("in memory");
+        } else {
+            checker.check_reader("f.kvr", bytes).expect("in memory");
+        }
+        let summary = checker.finish().expect("in memory");
+        (format!("{:#?}", recording.events), summary)
+    }
+
+    #[test]
+    fn chunked_parallel_check_reports_exactly_what_the_line_by_line_check_does() {
+        // Reactions and hosts from the notation grammar (grammar/notation.md);
+        // every kind of line, and host changes just before and after chunk
+        // boundaries, so a host applied to the wrong lines would show.
+        let reactions = [
+            "Y2O3 -> 2Y_Zr' + 3O_O + V_O..",
+            "O_O -> V_O.. + 2e' + 1/2 O2(g)",
+            "nil -> V_Zr'''' + 2V_O••",
+            "Y2O3 -> 2Y_Zr' + 3O_O + V_O.",
+            "Nb2O5 -> 2Nb_Ti. + 4O_O + 2e' + 1/2 O2(g)",
+            r"\mathrm{Y_2O_3} \rightarrow 2\,\mathrm{Y}_{\mathrm{Zr}}^{\prime} + 3\,\mathrm{O}_{\mathrm{O}}^{\times} + V_{\mathrm{O}}^{\bullet\bullet}",
+            "nil -> e' + h.",
+            "O_O -> V_O +",
+        ];
+        let hosts = [
+            "host ZrO2",
+            "host TiO2",
+            "host Zr2",
+            "  host CeO2 # comment",
+        ];
+        let mut text: Vec<u8> = Vec::new();
+        let lines = 2 * CHUNK_LINES + 700;
+        for i in 0..lines {
+            let line: Vec<u8> = match i % 997 {
+                _ if i % CHUNK_LINES == 0 || i % CHUNK_LINES == CHUNK_LINES - 1 || i % 613 == 5 => {
+                    hosts[(i / 7) % hosts.len()].as_bytes().to_vec()
+                }
+                1 => b"# a comment".to_vec(),
+                2 => Vec::new(),
+                3 => b"K red = 1e-20".to_vec(),
+                4 => b"r1: O_O -> V_O.. + 2e' + \xff O2(g)".to_vec(),
+                5 => b"r1: nil -> e' + h.".to_vec(),
+                _ => format!("r{}: {}", i % 1500, reactions[i % reactions.len()]).into_bytes(),
+            };
+            text.extend_from_slice(&line);
+            text.extend_from_slice(if i % 5 == 0 { b"\r\n" } else { b"\n" });
+        }
+        let (sequential, sequential_summary) = run(&text, false);
+        let (parallel, parallel_summary) = run(&text, true);
+        assert_eq!(sequential_summary, parallel_summary);
+        assert!(sequential_summary.reactions > lines as u64 / 2);
+        assert!(sequential_summary.errors > 0 && sequential_summary.warnings > 0);
+        assert!(sequential == parallel, "the two runs report differently");
+        // A file without a final newline, and an empty one.
+        for text in [&b"host ZrO2\nnil -> e' + h."[..], b""] {
+            assert_eq!(run(text, false), run(text, true));
+        }
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(24))]
+
+        /// Any mix of lines, host changes and stray bytes: the chunked check
+        /// reports what the line-by-line one does.
+        #[test]
+        fn chunked_and_line_by_line_agree_on_any_file(
+            picks in proptest::collection::vec((0usize..14, proptest::prelude::any::<u8>()), 0..900)
+        ) {
+            const PIECES: [&[u8]; 14] = [
+                b"host ZrO2",
+                b"host TiO2",
+                b"host Q9",
+                b"  host  CeO2  # c",
+                b"hostess: nil -> e' + h.",
+                b"r: O_O -> V_O.. + 2e' + 1/2 O2(g)",
+                b"r: Y2O3 -> 2Y_Zr' + 3O_O + V_O.",
+                b"nil -> V_Zr'''' + 2V_O",
+                br"\mathrm{O}_{\mathrm{O}} \rightarrow V_{O}^{\bullet\bullet} + 2e'",
+                b"K red = 1e-20",
+                b"",
+                b"# comment",
+                b"O_O -> (",
+                b"\xe2\x86",
+            ];
+            let mut text = Vec::new();
+            for (piece, byte) in &picks {
+                text.extend_from_slice(PIECES[*piece]);
+                if *byte < 8 {
+                    text.push(*byte | 0x80);
+                }
+                text.extend_from_slice(if *byte % 7 == 0 { b"\r\n" } else { b"\n" });
+            }
+            proptest::prop_assert_eq!(run(&text, false), run(&text, true));
+        }
+    }
+}

@@ -1,0 +1,5 @@
+//! From a defect model to numbers: exact Brouwer regimes and the full
+//! numerical equilibrium.
+
+pub mod equilibrium;
+pub mod regimes;
