@@ -90,47 +90,133 @@ fn every_example_file_runs() {
     assert!(seen > 0);
 }
 
-/// Commands in README.md's console blocks, as `$ lacuna …` or
-/// `$ cargo run --release -- …` lines, run with the built binary.
-#[test]
-fn every_readme_command_runs() {
-    let readme = fs::read_to_string(repo("README.md")).expect("README.md");
-    let mut ran = 0;
-    let scratch = tempfile::tempdir().expect("temp dir");
-    for line in blocks(&readme, "console") {
-        let Some(command) = line.strip_prefix("$ ") else {
+/// One `$ lacuna …` (or `$ cargo run --release -- …`) line of a console
+/// block and the output shown under it, if any.
+struct Example {
+    doc: String,
+    line: usize,
+    command: String,
+    args: Vec<String>,
+    shown: Vec<String>,
+}
+
+/// The commands of every console block in `doc`, each with the lines shown
+/// beneath it up to the next `$` line or the end of the block.
+fn console_examples(doc: &str) -> Vec<Example> {
+    let text = fs::read_to_string(repo(doc)).expect("document");
+    let mut examples: Vec<Example> = Vec::new();
+    let mut inside = false;
+    let mut current: Option<Example> = None;
+    for (number, line) in text.lines().enumerate() {
+        if let Some(tag) = line.strip_prefix("```") {
+            inside = !inside && tag.trim() == "console";
+            examples.extend(current.take());
             continue;
-        };
-        let args = if let Some(rest) = command.strip_prefix("lacuna ") {
-            rest
-        } else if let Some(rest) = command.strip_prefix("cargo run --release -- ") {
-            rest
-        } else {
+        }
+        if !inside {
             continue;
-        };
-        // Run in a scratch folder so files the commands write stay out of the tree.
-        let words: Vec<String> = split_words(args)
-            .into_iter()
-            .map(|w| {
-                if w.starts_with("examples/") || w == "examples" {
-                    repo(&w)
-                } else {
-                    w
-                }
-            })
-            .collect();
-        let words: Vec<&str> = words.iter().map(String::as_str).collect();
-        let run =
-            crate::support::lacuna_in(scratch.path().to_str().expect("utf-8 path"), &words, None);
-        assert!(
-            run.code == 0 || run.code == 1,
-            "README command `{command}` exited {}:\n{}",
-            run.code,
-            run.stderr
-        );
-        ran += 1;
+        }
+        if let Some(command) = line.strip_prefix("$ ") {
+            examples.extend(current.take());
+            let args = command
+                .strip_prefix("lacuna ")
+                .or_else(|| command.strip_prefix("cargo run --release -- "));
+            current = args.map(|args| Example {
+                doc: doc.to_string(),
+                line: number + 1,
+                command: command.to_string(),
+                args: split_words(args),
+                shown: Vec::new(),
+            });
+        } else if let Some(example) = current.as_mut() {
+            example.shown.push(line.trim_end().to_string());
+        }
     }
-    assert!(ran >= 2, "README shows only {ran} commands");
+    examples.extend(current);
+    examples
+}
+
+/// The documents whose console examples are run; shown output is a snapshot.
+const COMMAND_DOCS: &[&str] = &[
+    "README.md",
+    "grammar/balance.md",
+    "grammar/measurements.md",
+    "grammar/model.md",
+    "grammar/notation.md",
+    "grammar/reaction-file.md",
+    "grammar/repl.md",
+];
+
+/// Every command in the documents' console blocks runs with the built binary
+/// in a scratch copy of `examples/`; where the document shows output under a
+/// command, the real output (stdout then stderr, colour off) must match it
+/// line for line, so a changed report is a visible diff in the document.
+#[test]
+fn every_documented_command_runs_and_prints_what_the_document_shows() {
+    let scratch = tempfile::tempdir().expect("temp dir");
+    copy_folder(&repo("examples"), &scratch.path().join("examples"));
+    let dir = scratch.path().to_str().expect("utf-8 path");
+    let mut ran = 0;
+    let mut compared = 0;
+    let mut mismatches = Vec::new();
+    for doc in COMMAND_DOCS {
+        for example in console_examples(doc) {
+            let words: Vec<&str> = example.args.iter().map(String::as_str).collect();
+            let run = crate::support::lacuna_in(dir, &words, None);
+            assert!(
+                run.code == 0 || run.code == 1,
+                "{}:{}: `{}` exited {}:\n{}",
+                example.doc,
+                example.line,
+                example.command,
+                run.code,
+                run.stderr
+            );
+            ran += 1;
+            if example.shown.is_empty() {
+                continue;
+            }
+            compared += 1;
+            let actual: Vec<String> = format!("{}{}", run.stdout, run.stderr)
+                .lines()
+                .map(|l| l.trim_end().to_string())
+                .collect();
+            let trim = |lines: &[String]| -> Vec<String> {
+                let mut lines = lines.to_vec();
+                while lines.last().is_some_and(|l| l.is_empty()) {
+                    lines.pop();
+                }
+                lines
+            };
+            let (shown, actual) = (trim(&example.shown), trim(&actual));
+            if shown != actual {
+                mismatches.push(format!(
+                    "{}:{}: `{}`\n--- shown\n{}\n--- printed\n{}",
+                    example.doc,
+                    example.line,
+                    example.command,
+                    shown.join("\n"),
+                    actual.join("\n")
+                ));
+            }
+        }
+    }
+    assert!(mismatches.is_empty(), "{}", mismatches.join("\n\n"));
+    assert!(ran >= 20, "the documents show only {ran} commands");
+    assert!(compared >= 3, "only {compared} documented outputs compared");
+}
+
+fn copy_folder(from: &str, to: &std::path::Path) {
+    fs::create_dir_all(to).expect("scratch folder");
+    for entry in fs::read_dir(from).expect("folder") {
+        let path = entry.expect("entry").path();
+        let target = to.join(path.file_name().expect("name"));
+        if path.is_dir() {
+            copy_folder(&path.display().to_string(), &target);
+        } else {
+            fs::copy(&path, &target).expect("copy");
+        }
+    }
 }
 
 /// Splits a shell-like command line on spaces, honouring single and double quotes.
