@@ -1,6 +1,7 @@
 //! The one integration-test binary: every module runs the real `lacuna`
 //! binary or the public library against the project's documents.
 
+mod architecture;
 mod balance;
 mod brouwer;
 mod check_cli;

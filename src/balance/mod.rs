@@ -12,9 +12,10 @@
 //! small matrix (the `matrix` module). Everything is exact: no floating point.
 
 pub mod build;
+pub mod checked;
 mod explain;
+pub mod hint;
 mod matrix;
-pub mod report;
 
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;

@@ -25,9 +25,7 @@ pub mod decompose;
 pub mod from_model;
 pub mod linalg;
 pub mod regimes;
-pub mod report;
 pub mod segment;
-pub mod svg;
 
 #[cfg(test)]
 mod tests;
@@ -38,6 +36,14 @@ use linalg::critical_value;
 use regimes::{CarrierLaw, ModelRegimes, Regime, SlopeMatch, match_slope};
 use segment::{BicEntry, SegmentOptions};
 use std::fmt;
+
+/// A number in compact scientific form: `1.23e-20`.
+pub fn sci(v: f64) -> String {
+    if v == 0.0 {
+        return "0".into();
+    }
+    format!("{v:.2e}")
+}
 
 /// One measurement, in kelvin, bar and S/cm.
 #[derive(Debug, Clone, PartialEq)]
@@ -484,8 +490,8 @@ fn analyse_isotherm(
                         notes.push(format!(
                             "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
                             iso.label,
-                            report::sci(seg.po2_min_bar),
-                            report::sci(seg.po2_max_bar),
+                            sci(seg.po2_min_bar),
+                            sci(seg.po2_max_bar),
                             seg.slope,
                             regimes::slope_text(seg.matching.nearest)
                         ));
@@ -497,9 +503,9 @@ fn analyse_isotherm(
                     notes.push(format!(
                         "isotherm {}: the boundary {name} at pO2 = {} bar lies outside the measured {} … {} bar; it is extrapolated along the fitted power laws",
                         iso.label,
-                        report::sci(b.po2_bar),
-                        report::sci(po2.first().copied().unwrap_or(0.0)),
-                        report::sci(po2.last().copied().unwrap_or(0.0)),
+                        sci(b.po2_bar),
+                        sci(po2.first().copied().unwrap_or(0.0)),
+                        sci(po2.last().copied().unwrap_or(0.0)),
                     ));
                 }
             }

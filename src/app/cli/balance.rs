@@ -3,12 +3,13 @@
 //! they cannot or the reaction has errors, 2 for usage errors.
 
 use super::{ColorChoice, fail, host_argument};
-use crate::balance::report::{check_and_balance, write_outcome};
+use crate::balance::checked::check_and_balance;
 use crate::balance::{Outcome, Status};
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
 use crate::host::Host;
 use crate::notation::{Style, parse_reaction, render_reaction};
+use crate::report::balance::write_outcome;
 use crate::report::{Palette, human::write_diagnostic};
 use clap::{Args, ValueEnum};
 use serde::Serialize;
