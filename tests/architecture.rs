@@ -563,3 +563,100 @@ fn the_core_importing_the_front_end_is_refused() {
         "{found:?}"
     );
 }
+
+/// The files of `app::cli` every command may use: the dispatcher with its
+/// shared pieces (`mod.rs`) and the model input helper.
+const CLI_SHARED: &[&str] = &["model_input"];
+
+/// Front-end imports known to break the rule, each waiting for the library
+/// to offer what it takes from the workbench. The test fails when one is
+/// gone, so that the list only shrinks.
+const KNOWN_CLI_EXCEPTIONS: &[(&str, &str)] = &[
+    // `typeset` takes the reaction reader of the workbench (`analyse`,
+    // `HostSlot`); it moves to the one reaction-file reader of the library.
+    ("app::cli::typeset", "app::workbench"),
+];
+
+/// The imports of one command's file that reach another command or the
+/// workbench (`repl`, which starts the workbench, excepted).
+fn cli_problems(edges: &BTreeSet<(ModPath, ModPath)>) -> Vec<(String, String)> {
+    let mut out = Vec::new();
+    for (from, to) in edges {
+        let (Some("app"), Some("cli"), Some(command)) = (
+            from.first().map(String::as_str),
+            from.get(1).map(String::as_str),
+            from.get(2).map(String::as_str),
+        ) else {
+            continue;
+        };
+        if CLI_SHARED.contains(&command) {
+            continue;
+        }
+        let other_command = to.len() > 2
+            && to[0] == "app"
+            && to[1] == "cli"
+            && to[2] != command
+            && !CLI_SHARED.contains(&to[2].as_str());
+        let workbench = to.len() > 1 && to[0] == "app" && to[1] == "workbench" && command != "repl";
+        if other_command || workbench {
+            let target = if workbench {
+                "app::workbench".to_string()
+            } else {
+                to[..3].join("::")
+            };
+            out.push((from[..3].join("::"), target));
+        }
+    }
+    out.sort();
+    out.dedup();
+    out
+}
+
+#[test]
+fn cli_commands_import_neither_each_other_nor_the_workbench() {
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+    let found = cli_problems(&file_edges(&module_files(&src)));
+    let known = |p: &(String, String)| {
+        KNOWN_CLI_EXCEPTIONS
+            .iter()
+            .any(|(a, b)| p.0 == *a && p.1 == *b)
+    };
+    let new: Vec<_> = found.iter().filter(|p| !known(p)).collect();
+    assert!(
+        new.is_empty(),
+        "commands importing each other or the workbench: {new:?}"
+    );
+    for (a, b) in KNOWN_CLI_EXCEPTIONS {
+        assert!(
+            found.iter().any(|p| p.0 == *a && p.1 == *b),
+            "`{a}` no longer imports `{b}`: remove it from KNOWN_CLI_EXCEPTIONS"
+        );
+    }
+}
+
+#[test]
+fn a_command_importing_another_is_found() {
+    let t = tree(&[
+        ("app", "pub mod cli; pub mod workbench;"),
+        (
+            "app::cli",
+            "mod dope; mod balance; mod model_input; mod repl;",
+        ),
+        ("app::cli::balance", "pub struct Shared;"),
+        ("app::cli::model_input", "pub fn gather() {}"),
+        (
+            "app::cli::dope",
+            "use super::balance::Shared; use super::model_input::gather; use super::fail;",
+        ),
+        ("app::cli::repl", "use crate::app::workbench::Session;"),
+        ("app::workbench", "pub struct Session;"),
+    ]);
+    let found = cli_problems(&file_edges(&t));
+    assert_eq!(
+        found,
+        [(
+            "app::cli::dope".to_string(),
+            "app::cli::balance".to_string()
+        )]
+    );
+}

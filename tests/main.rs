@@ -15,6 +15,7 @@ mod laws;
 mod lint_cli;
 mod model_grammar;
 mod native;
+mod pipes;
 mod properties;
 mod repl;
 mod support;

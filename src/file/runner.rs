@@ -7,6 +7,8 @@
 //! (`check_reader`), or each chunk of lines (`check_reader_parallel`, which
 //! parses and checks a file's lines on all cores and reports them in order).
 
+mod files;
+
 use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::Verdict;

@@ -171,7 +171,7 @@ pub fn run(args: &FitArgs) -> ExitCode {
     let written = match args.format {
         FitFormat::Table => report::write_table(&mut out, &report, args.color.palette()),
         FitFormat::Json => serde_json::to_writer_pretty(&mut out, &report)
-            .map_err(io::Error::other)
+            .map_err(io::Error::from)
             .and_then(|_| writeln!(out)),
     };
     match written.and_then(|_| out.flush()) {
