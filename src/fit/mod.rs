@@ -8,8 +8,9 @@
 //! slopes (`segment`), the decomposition σ = σ_ion + σ_n°·pO2^a + σ_p°·pO2^b
 //! with transference numbers and electrolytic domain boundaries
 //! (`decompose`), and across isotherms the Arrhenius fits of each term with
-//! the reaction enthalpies the regime implies (`arrhenius`). `report` writes
-//! it as a table and fitted-curve CSV, `svg` draws it.
+//! the reaction enthalpies the regime implies (`arrhenius`). The result is plain
+//! data: `crate::report::fit` writes it as a table and fitted-curve CSV,
+//! `crate::report::svg::render_fit` draws it.
 //!
 //! Everything that can mislead is carried in the report, not hidden: poor
 //! fits, slopes that match no regime, terms not detected, boundaries
