@@ -408,3 +408,21 @@ fn check_hint_shows_the_balanced_form() {
         verdict.diagnostics
     );
 }
+
+#[test]
+fn the_checker_alone_never_calls_the_balancer() {
+    // The hint is the caller's (`hint::check_with_hint`); the checker's own
+    // verdict holds the balances and their diagnostics only.
+    let h = host("ZrO2");
+    let verdict = check_reaction(&parse("Y2O3 -> Y_Zr' + O_O + V_O.."), Some(&h));
+    assert!(!verdict.ok());
+    assert!(
+        verdict.diagnostics.iter().all(|d| !d
+            .help
+            .as_deref()
+            .unwrap_or("")
+            .contains("balanced, it reads")),
+        "{:?}",
+        verdict.diagnostics
+    );
+}

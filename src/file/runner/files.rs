@@ -111,3 +111,65 @@ fn check_one(
     let summary = local.summary;
     (recording, summary, error)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::gnu::GnuSink;
+
+    /// What a run over `files` prints (gnu format) and counts.
+    fn report(files: &[PathBuf], parallel: bool) -> (String, Summary, Vec<PathBuf>) {
+        let mut out = Vec::new();
+        let mut sink = GnuSink::new(&mut out);
+        let host = Host::from_spec("ZrO2").ok();
+        let mut checker = Checker::new(host, &mut sink);
+        let mut unreadable = Vec::new();
+        if parallel {
+            unreadable = checker
+                .check_files(files)
+                .expect("the sink writes to memory")
+                .into_iter()
+                .map(|(path, _)| path)
+                .collect();
+        } else {
+            for path in files {
+                match File::open(path) {
+                    Ok(file) => checker
+                        .check_reader(&path.display().to_string(), BufReader::new(file))
+                        .expect("the sink writes to memory"),
+                    Err(_) => unreadable.push(path.clone()),
+                }
+            }
+        }
+        let summary = checker.finish().expect("the sink writes to memory");
+        (String::from_utf8(out).expect("UTF-8"), summary, unreadable)
+    }
+
+    #[test]
+    fn files_side_by_side_report_as_one_after_another() {
+        // More files than one batch, failing and passing, one missing, a
+        // file with its own host and one relying on the run's default.
+        let dir = tempfile::tempdir().expect("a temporary folder");
+        let mut files = Vec::new();
+        for i in 0..(BATCH + 45) {
+            let path = dir.path().join(format!("f{i:04}.kvr"));
+            let text = match i % 3 {
+                0 => "Y2O3 -> Y_Zr' + O_O + V_O..\n".to_string(),
+                1 => format!("host CeO2\nr{i}: Gd2O3 -> 2Gd_Ce' + 3O_O + V_O..\n"),
+                _ => "nil -> e' + h.\nnil -> e' + h.\n".to_string(),
+            };
+            std::fs::write(&path, text).expect("written");
+            files.push(path);
+        }
+        files.insert(100, dir.path().join("missing.kvr"));
+        let (parallel, summary, unreadable) = report(&files, true);
+        let (sequential, expected, expected_unreadable) = report(&files, false);
+        assert_eq!(parallel, sequential);
+        assert_eq!(summary, expected);
+        assert_eq!(unreadable, expected_unreadable);
+        assert_eq!(unreadable, [dir.path().join("missing.kvr")]);
+        // The balanced form is attached in the runner, as for one file.
+        assert!(parallel.contains("balanced, it reads"), "{parallel}");
+        assert_eq!(summary.sources, BATCH as u64 + 45);
+    }
+}
