@@ -8,8 +8,9 @@
 //! the folder's own file (`mod.rs`, or `lib.rs` at the top) and each of its
 //! direct children (a file, or a sub-folder taken as one), so `src/` gives
 //! the graph between the stages, `src/fit/` the graph between the files of
-//! `fit`, and so on. A folder's own file naming a child by bare name
-//! (`mod x; pub use x::f;`) is its facade, not an import, and is not counted.
+//! `fit`, and so on. A folder's own file naming a child it declares
+//! (`mod x;`) counts too (`use x::f;`, `x::f()`), except a re-export
+//! (`pub use x::f;`): that is the folder's facade, not an import.
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;
@@ -223,11 +224,30 @@ fn use_tree(
 }
 
 /// The crate modules one file names, as written (`crate::x`, `super::y`,
-/// `self::z`), each with the module it is written in (the file's own, or an
-/// inline `mod tests { … }` inside it).
+/// `self::z`, or a child module the file declares, `x::f()`), each with the
+/// module it is written in (the file's own, or an inline `mod tests { … }`
+/// inside it). A `pub use` of a child is the folder's facade and is skipped.
 fn named_paths(file: &ModPath, src: &str) -> Vec<(ModPath, Vec<String>)> {
     let tokens = tokens(src);
     let mut out = Vec::new();
+    // The file's child modules (`mod x;`), named by bare paths in it.
+    let children: BTreeSet<&str> = tokens
+        .windows(3)
+        .filter_map(|w| match w {
+            [Token::Ident(kw), Token::Ident(name), Token::Punct(';')] if kw == "mod" => {
+                Some(name.as_str())
+            }
+            _ => None,
+        })
+        .collect();
+    let child_path = |path: &[String]| -> Option<Vec<String>> {
+        let first = path.first()?;
+        children.contains(first.as_str()).then(|| {
+            let mut p = vec!["self".to_string()];
+            p.extend(path.iter().cloned());
+            p
+        })
+    };
     // Inline modules open: (name, brace depth inside them).
     let mut inline: Vec<(String, usize)> = Vec::new();
     let mut depth = 0usize;
@@ -269,11 +289,15 @@ fn named_paths(file: &ModPath, src: &str) -> Vec<(ModPath, Vec<String>)> {
                 }
                 let end = use_tree(&tokens, j, &[], &mut paths);
                 let m = here(&inline);
+                let public = is_pub(&tokens, i);
                 for p in paths {
                     if matches!(
                         p.first().map(String::as_str),
                         Some("crate" | "super" | "self")
                     ) {
+                        out.push((m.clone(), p));
+                    } else if let Some(p) = child_path(&p).filter(|_| !public && inline.is_empty())
+                    {
                         out.push((m.clone(), p));
                     }
                 }
@@ -299,10 +323,48 @@ fn named_paths(file: &ModPath, src: &str) -> Vec<(ModPath, Vec<String>)> {
                 out.push((here(&inline), path));
                 i = j;
             }
+            // `x::f()` with `x` a child module of this file, at the start of
+            // a path (not `a::x::f`), outside inline modules (their scope
+            // does not see the file's children by bare name).
+            Token::Ident(name)
+                if inline.is_empty()
+                    && children.contains(name.as_str())
+                    && tokens.get(i + 1) == Some(&Token::Path)
+                    && !matches!(
+                        i.checked_sub(1).and_then(|k| tokens.get(k)),
+                        Some(Token::Path)
+                    ) =>
+            {
+                let mut path = vec!["self".to_string(), name.clone()];
+                let mut j = i + 1;
+                while tokens.get(j) == Some(&Token::Path) {
+                    match tokens.get(j + 1) {
+                        Some(Token::Ident(n)) => {
+                            path.push(n.clone());
+                            j += 2;
+                        }
+                        _ => break,
+                    }
+                }
+                out.push((file.clone(), path));
+                i = j;
+            }
             _ => i += 1,
         }
     }
     out
+}
+
+/// Whether the `use` at `tokens[i]` is `pub` (also `pub(crate)` and the like).
+fn is_pub(tokens: &[Token], i: usize) -> bool {
+    let mut k = i;
+    if k > 0 && tokens[k - 1] == Token::Punct(')') {
+        while k > 0 && tokens[k - 1] != Token::Punct('(') {
+            k -= 1;
+        }
+        k = k.saturating_sub(1);
+    }
+    k > 0 && matches!(&tokens[k - 1], Token::Ident(w) if w == "pub")
 }
 
 /// Resolves `path`, written in module `at`, to the file module that
@@ -365,7 +427,7 @@ fn folder_graphs(
         let node = |m: &ModPath| {
             m.get(common)
                 .cloned()
-                .unwrap_or_else(|| "(folder's own file)".to_string())
+                .unwrap_or_else(|| OWN_FILE.to_string())
         };
         // The crate root (lib.rs, main.rs) only declares the stages.
         if common == 0 && (from.is_empty() || to.is_empty()) {
@@ -428,16 +490,53 @@ fn cycles(edges: &BTreeSet<(String, String)>) -> Vec<Vec<String>> {
     found
 }
 
-/// The problems of a source tree: every cycle, and every core module that
-/// names `app`.
-fn problems(tree: &[(ModPath, String)]) -> Vec<String> {
+/// Folders whose own file (`mod.rs`) both reaches its children by bare
+/// name and is used by them: cycles through that file are tolerated there,
+/// cycles among the children are not. The test fails when one no longer
+/// has such a cycle, so that the list only shrinks.
+const KNOWN_FACADE_CYCLES: &[(&str, &str)] = &[
+    (
+        "src/app/cli/",
+        "mod.rs dispatches to each command and holds the helpers they share \
+         (colour, formats, `fail`); moving the helpers into a file of their \
+         own ends it once the command files settle",
+    ),
+    (
+        "src/base/elements/",
+        "the generated table.rs fills types declared in mod.rs, which reads it",
+    ),
+];
+
+const OWN_FILE: &str = "(folder's own file)";
+
+/// The problems of a source tree: every cycle (except those through the
+/// own file of a folder in `tolerated`), and every core module that names
+/// `app`. Also returns the tolerated folders that had such a cycle.
+fn problems_tolerating(
+    tree: &[(ModPath, String)],
+    tolerated: &[&str],
+) -> (Vec<String>, BTreeSet<String>) {
     let edges = file_edges(tree);
     let mut out = Vec::new();
+    let mut seen = BTreeSet::new();
     for (folder, graph) in folder_graphs(&edges) {
         let place = if folder.is_empty() {
             "src/".to_string()
         } else {
             format!("src/{}/", folder.join("/"))
+        };
+        let facade_ok = tolerated.contains(&place.as_str());
+        // Without the own file's edges, what is left must be acyclic there.
+        let graph: BTreeSet<(String, String)> = if facade_ok {
+            if !cycles(&graph).is_empty() {
+                seen.insert(place.clone());
+            }
+            graph
+                .into_iter()
+                .filter(|(a, b)| a != OWN_FILE && b != OWN_FILE)
+                .collect()
+        } else {
+            graph
         };
         for cycle in cycles(&graph) {
             out.push(format!("import cycle in {place}: {}", cycle.join(" → ")));
@@ -453,7 +552,12 @@ fn problems(tree: &[(ModPath, String)]) -> Vec<String> {
             ));
         }
     }
-    out
+    (out, seen)
+}
+
+/// The problems of a source tree, nothing tolerated.
+fn problems(tree: &[(ModPath, String)]) -> Vec<String> {
+    problems_tolerating(tree, &[]).0
 }
 
 #[test]
@@ -461,8 +565,15 @@ fn src_has_no_import_cycle_and_the_core_never_imports_app() {
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
     let tree = module_files(&src);
     assert!(tree.len() > 50, "read {} files from {src:?}", tree.len());
-    let problems = problems(&tree);
+    let folders: Vec<&str> = KNOWN_FACADE_CYCLES.iter().map(|(f, _)| *f).collect();
+    let (problems, seen) = problems_tolerating(&tree, &folders);
     assert!(problems.is_empty(), "{}", problems.join("\n"));
+    for folder in folders {
+        assert!(
+            seen.contains(folder),
+            "{folder} has no cycle through its own file any more: remove it from KNOWN_FACADE_CYCLES"
+        );
+    }
 }
 
 #[test]
@@ -516,6 +627,60 @@ fn a_cycle_between_sibling_files_is_found_through_super() {
     assert_eq!(found.len(), 1, "{found:?}");
     assert!(found[0].contains("src/fit/"), "{found:?}");
     assert!(found[0].contains("regimes") && found[0].contains("from_model"));
+}
+
+#[test]
+fn a_folder_file_calling_a_child_that_uses_it_is_a_cycle() {
+    // `balance/mod.rs` declares `explain` and calls into it; `explain` uses
+    // a type of `balance`: a cycle, though no `crate::` path is written. A
+    // re-export (`pub use explain::f;`) alone is the folder's facade.
+    let cyclic = tree(&[
+        (
+            "balance",
+            "mod explain;\nuse explain::signed;\npub struct System;",
+        ),
+        ("balance::explain", "use super::System;\npub fn signed() {}"),
+    ]);
+    let found = problems(&cyclic);
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(found[0].contains("src/balance/"), "{found:?}");
+    let call = tree(&[
+        (
+            "balance",
+            "mod explain;\nfn f() { explain::signed(); }\npub struct System;",
+        ),
+        ("balance::explain", "use super::System;\npub fn signed() {}"),
+    ]);
+    assert_eq!(problems(&call).len(), 1);
+    let facade = tree(&[
+        (
+            "balance",
+            "mod explain;\npub use explain::signed;\npub struct System;",
+        ),
+        ("balance::explain", "use super::System;\npub fn signed() {}"),
+    ]);
+    assert!(problems(&facade).is_empty(), "{:?}", problems(&facade));
+}
+
+#[test]
+fn a_tolerated_facade_still_refuses_cycles_among_its_children() {
+    let t = tree(&[
+        (
+            "cli",
+            "mod a; mod b; fn main() { a::run(); b::run(); }\npub fn fail() {}",
+        ),
+        (
+            "cli::a",
+            "use super::fail; use super::b::X; pub fn run() {}",
+        ),
+        (
+            "cli::b",
+            "use super::fail; use super::a::run; pub struct X;",
+        ),
+    ]);
+    let (found, seen) = problems_tolerating(&t, &["src/cli/"]);
+    assert!(seen.contains("src/cli/"));
+    assert_eq!(found, ["import cycle in src/cli/: a → b → a"], "{found:?}");
 }
 
 #[test]

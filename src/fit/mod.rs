@@ -38,6 +38,9 @@ use regimes::{CarrierLaw, ModelRegimes, Regime, SlopeMatch, match_slope};
 use segment::{BicEntry, SegmentOptions};
 use std::fmt;
 
+/// 1 atm in bar (exact by definition: 101 325 Pa).
+pub const BAR_PER_ATM: f64 = 1.01325;
+
 /// A number in compact scientific form: `1.23e-20`.
 pub fn sci(v: f64) -> String {
     if v == 0.0 {
@@ -352,7 +355,7 @@ pub fn analyse(
         constants: Constants {
             k_b_ev_per_k: arrhenius::K_B_EV,
             kj_per_mol_per_ev: KJ_PER_MOL_PER_EV,
-            bar_per_atm: csv_input::BAR_PER_ATM,
+            bar_per_atm: BAR_PER_ATM,
         },
         isotherms,
         arrhenius,

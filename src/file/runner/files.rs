@@ -115,12 +115,44 @@ fn check_one(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::gnu::GnuSink;
+    use crate::base::diagnostic::Diagnostic;
+    use crate::file::runner::{ReactionReport, Sink};
 
-    /// What a run over `files` prints (gnu format) and counts.
+    /// Every report as one line of text: where, what, and each finding.
+    #[derive(Default)]
+    struct Lines(Vec<String>);
+
+    impl Sink for Lines {
+        fn reaction(&mut self, report: &ReactionReport<'_>) -> io::Result<()> {
+            let findings: Vec<String> = report
+                .diagnostics
+                .iter()
+                .map(|d| format!("{}: {} ({:?})", d.code.as_str(), d.message, d.help))
+                .collect();
+            self.0.push(format!(
+                "{}:{} {} | {}",
+                report.source,
+                report.line,
+                report.text,
+                findings.join("; ")
+            ));
+            Ok(())
+        }
+
+        fn line_problem(&mut self, source: &str, _: &str, d: &Diagnostic) -> io::Result<()> {
+            self.0
+                .push(format!("{source}:{} {}", d.line, d.code.as_str()));
+            Ok(())
+        }
+
+        fn finish(&mut self, _: &Summary) -> io::Result<()> {
+            Ok(())
+        }
+    }
+
+    /// What a run over `files` reports and counts.
     fn report(files: &[PathBuf], parallel: bool) -> (String, Summary, Vec<PathBuf>) {
-        let mut out = Vec::new();
-        let mut sink = GnuSink::new(&mut out);
+        let mut sink = Lines::default();
         let host = Host::from_spec("ZrO2").ok();
         let mut checker = Checker::new(host, &mut sink);
         let mut unreadable = Vec::new();
@@ -142,7 +174,7 @@ mod tests {
             }
         }
         let summary = checker.finish().expect("the sink writes to memory");
-        (String::from_utf8(out).expect("UTF-8"), summary, unreadable)
+        (sink.0.join("\n"), summary, unreadable)
     }
 
     #[test]
