@@ -107,6 +107,11 @@ fn cases(inputs: &Inputs) -> Vec<Case> {
         ),
         case("fit", &["fit", &measurements], false),
         case("fit", &["fit", &measurements, "--format", "json"], false),
+        case("help", &["help"], false),
+        case("help", &["help", "brouwer"], false),
+        case("help", &["--help"], false),
+        case("help", &["--version"], false),
+        case("check", &["check", "--help"], false),
         Case {
             command: "repl",
             args: vec!["repl".into(), "--host".into(), "ZrO2".into()],
@@ -116,7 +121,7 @@ fn cases(inputs: &Inputs) -> Vec<Case> {
     ]
 }
 
-/// The subcommands `lacuna --help` lists (without `help`).
+/// The subcommands `lacuna --help` lists (`help` included).
 fn subcommands() -> Vec<String> {
     let output = Command::new(env!("CARGO_BIN_EXE_lacuna"))
         .arg("--help")
@@ -133,7 +138,6 @@ fn subcommands() -> Vec<String> {
         // A command starts its line after two spaces; descriptions wrap deeper.
         .filter(|l| l.starts_with("  ") && !l.starts_with("   "))
         .filter_map(|l| l.split_whitespace().next())
-        .filter(|c| *c != "help")
         .map(str::to_string)
         .collect()
 }

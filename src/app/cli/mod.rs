@@ -109,7 +109,11 @@ impl ColorChoice {
 
 /// Parses the process arguments and runs the command.
 pub fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        // Help, the version and usage errors, written like any output.
+        Err(e) => return parse_failed(&e),
+    };
     let code = run(cli);
     // What is still buffered must reach the reader, or the exit says it did
     // not (once: a command that already failed has said why).
@@ -117,6 +121,18 @@ pub fn main() -> ExitCode {
         Ok(()) => code,
         Err(_) if FAILED.load(Ordering::Relaxed) => ExitCode::from(2),
         Err(e) => output_failed(&e),
+    }
+}
+
+/// Prints what the argument parser has to say (help and the version on
+/// standard output, usage errors on standard error) and exits with its
+/// code, or with 2 when the help cannot be written.
+fn parse_failed(e: &clap::Error) -> ExitCode {
+    let written = e.print().and_then(|()| io::stdout().flush());
+    match written {
+        Ok(()) => ExitCode::from(u8::try_from(e.exit_code()).unwrap_or(2)),
+        Err(_) if e.use_stderr() => ExitCode::from(2),
+        Err(err) => output_failed(&err),
     }
 }
 
