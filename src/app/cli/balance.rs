@@ -2,7 +2,7 @@
 //! Exit 0 when the species balance (uniquely or in several ways), 1 when
 //! they cannot or the reaction has errors, 2 for usage errors.
 
-use super::{
+use super::shared::{
     ColorChoice, JsonDiagnostic, NotationStyle, OutputFormat, fail, host_argument, print_json,
 };
 use crate::balance::checked::check_and_balance;

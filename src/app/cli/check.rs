@@ -1,17 +1,30 @@
 //! `lacuna check`: the three balances and the lint rules over files,
 //! folders, stdin and inline reactions.
 
-use super::{ColorChoice, Format, fail, host_argument, output_failed, reaction_files};
+use super::shared::{ColorChoice, fail, host_argument, output_failed, reaction_files};
 use crate::check::rules::{Level, Levels, find_config};
 use crate::file::runner::{Checker, Sink};
 use crate::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
-use clap::Args;
+use clap::{Args, ValueEnum};
 use std::cell::Cell;
 use std::fs::File;
 use std::io::{self, BufReader, BufWriter, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::rc::Rc;
+
+/// Output format of `check`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Annotated text for people.
+    Human,
+    /// Machine-readable report (stable keys).
+    Json,
+    /// One `file:line:column: severity: message` line per problem.
+    Gnu,
+    /// SARIF 2.1.0 for code-scanning services.
+    Sarif,
+}
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
@@ -121,9 +134,7 @@ pub fn run(args: &CheckArgs) -> ExitCode {
             return output_failed(&e);
         }
     }
-    let finished = checker.finish();
-    drop(sink);
-    match finished {
+    match checker.finish() {
         Ok(_) if io_failed => ExitCode::from(2),
         Ok(summary) if summary.clean() => ExitCode::SUCCESS,
         Ok(_) => ExitCode::from(1),

@@ -3,8 +3,8 @@
 //! least one mechanism balances, 1 when none does or the level cannot be
 //! reached, 2 for usage errors (unreadable host, dopant, site or level).
 
-use super::{ColorChoice, fail, host_argument};
-use super::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
+use super::shared::{ColorChoice, fail, host_argument};
+use super::shared::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
 use crate::generate::dope::compound_text;

@@ -1,6 +1,6 @@
 //! `lacuna explain`: what a diagnostic code means.
 
-use super::{fail, finish, stdout};
+use super::shared::{fail, finish, stdout};
 use crate::base::diagnostic::Code;
 use crate::check::rules::rule_name;
 use clap::Args;

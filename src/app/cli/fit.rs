@@ -4,7 +4,7 @@
 //! (SVG) to files.
 
 use super::model_input::{gather, print_diagnostics};
-use super::{ColorChoice, fail};
+use super::shared::{ColorChoice, fail};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::fit::arrhenius::ArrheniusForm;
 use crate::fit::regimes::ModelRegimes;

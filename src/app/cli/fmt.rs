@@ -1,6 +1,6 @@
 //! `lacuna fmt`: rewrite reaction files in the canonical layout.
 
-use super::{output_failed, reaction_files, stdout};
+use super::shared::{output_failed, reaction_files, stdout};
 use crate::file::layout::{MarkSpelling, format_text};
 use crate::report::{Palette, human::write_diagnostic};
 use clap::{Args, ValueEnum};

@@ -2,7 +2,7 @@
 //! on a terminal). Without a terminal it reads commands line by line from
 //! standard input and prints plain output, so scripts can drive it.
 
-use super::{ColorChoice, fail, output_failed};
+use super::shared::{ColorChoice, fail, output_failed};
 use crate::app::workbench::Session;
 use crate::app::workbench::driver::{self, TerminalOptions};
 use crate::report::Palette;
