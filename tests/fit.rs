@@ -413,9 +413,9 @@ proptest::proptest! {
             let r = lacuna::fit::analyse(&m, None, &lacuna::fit::FitOptions::default());
             proptest::prop_assert!(r.is_ok());
             let r = r.unwrap();
-            let _ = lacuna::fit::svg::render(&r);
+            let _ = lacuna::report::svg::render_fit(&r);
             let mut sink = Vec::new();
-            lacuna::fit::report::write_table(&mut sink, &r, lacuna::report::Palette::PLAIN).unwrap();
+            lacuna::report::fit::write_table(&mut sink, &r, lacuna::report::Palette::PLAIN).unwrap();
         }
     }
 }

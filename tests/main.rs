@@ -1,6 +1,7 @@
 //! The one integration-test binary: every module runs the real `lacuna`
 //! binary or the public library against the project's documents.
 
+mod architecture;
 mod balance;
 mod brouwer;
 mod check_cli;
@@ -14,6 +15,7 @@ mod laws;
 mod lint_cli;
 mod model_grammar;
 mod native;
+mod pipes;
 mod properties;
 mod repl;
 mod support;

@@ -8,7 +8,7 @@
 
 use super::build::{Builder, gas, term};
 use super::matrix::{TooLarge, nullspace};
-use super::{Law, Status, System, Unknown, orient, symbol};
+use super::{Law, Status, System, Unknown, orient, signed, symbol};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
 use crate::host::Sublattice;
@@ -451,16 +451,6 @@ fn law_order(law: Law) -> u8 {
         Law::Charge => 0,
         Law::Sites => 1,
         Law::Element(_) => 2,
-    }
-}
-
-pub(super) fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(-q))
-    } else {
-        "0".into()
     }
 }
 

@@ -12,9 +12,10 @@
 //! small matrix (the `matrix` module). Everything is exact: no floating point.
 
 pub mod build;
+pub mod checked;
 mod explain;
+pub mod hint;
 mod matrix;
-pub mod report;
 
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;
@@ -24,7 +25,6 @@ use crate::notation::{
     Entity, Occupant, Phase, Reaction, Site, Span, Style, Term, render_reaction, render_species,
     render_term,
 };
-use explain::signed;
 use matrix::{Matrix, TooLarge, nullspace, primitive, rank};
 use num_integer::Integer;
 use num_traits::Signed;
@@ -265,6 +265,17 @@ struct System<'r> {
     matrix: Matrix,
     /// Explain a failure (off when trying out additions, which must not recurse).
     explain: bool,
+}
+
+/// A signed exact number with a true minus sign: `+2`, `−1/2`, `0`.
+fn signed(q: Q) -> String {
+    if q > Q::from_integer(0) {
+        format!("+{}", number::to_plain(q))
+    } else if q < Q::from_integer(0) {
+        format!("−{}", number::to_plain(-q))
+    } else {
+        "0".into()
+    }
 }
 
 fn symbol(z: u8) -> &'static str {

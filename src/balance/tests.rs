@@ -386,7 +386,7 @@ fn an_unknown_site_is_an_error_not_a_guess() {
 #[test]
 fn check_hint_shows_the_balanced_form() {
     let h = host("ZrO2");
-    let verdict = check_reaction(&parse("Y2O3 -> Y_Zr' + O_O + V_O.."), Some(&h));
+    let verdict = super::hint::check_with_hint(&parse("Y2O3 -> Y_Zr' + O_O + V_O.."), Some(&h));
     let helps: Vec<&str> = verdict
         .diagnostics
         .iter()
@@ -397,7 +397,25 @@ fn check_hint_shows_the_balanced_form() {
         "{helps:?}"
     );
     // Species that cannot balance get no such hint.
-    let verdict = check_reaction(&parse("Y2O3 -> 2Y_Zr' + 3O_O + V_O."), Some(&h));
+    let verdict = super::hint::check_with_hint(&parse("Y2O3 -> 2Y_Zr' + 3O_O + V_O."), Some(&h));
+    assert!(
+        verdict.diagnostics.iter().all(|d| !d
+            .help
+            .as_deref()
+            .unwrap_or("")
+            .contains("balanced, it reads")),
+        "{:?}",
+        verdict.diagnostics
+    );
+}
+
+#[test]
+fn the_checker_alone_never_calls_the_balancer() {
+    // The hint is the caller's (`hint::check_with_hint`); the checker's own
+    // verdict holds the balances and their diagnostics only.
+    let h = host("ZrO2");
+    let verdict = check_reaction(&parse("Y2O3 -> Y_Zr' + O_O + V_O.."), Some(&h));
+    assert!(!verdict.ok());
     assert!(
         verdict.diagnostics.iter().all(|d| !d
             .help

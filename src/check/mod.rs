@@ -2,7 +2,9 @@
 //!
 //! In: a parsed `Reaction` and the host it is written for. Out: a `Verdict`
 //! with the balance flags, the numbers behind them and diagnostics. Pure:
-//! no I/O, no colour, no knowledge of where the text came from.
+//! no I/O, no colour, no knowledge of where the text came from, and no
+//! call into the balancer: the balanced form shown as a hint on a failing
+//! reaction is attached by the caller (`crate::balance::hint`).
 
 pub mod rules;
 
@@ -120,38 +122,11 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     if site == Some(false) {
         checker.site_diagnostic(reaction, &table);
     }
-    if !mass || !charge || site == Some(false) {
-        balanced_hint(reaction, host, &mut checker.diags);
-    }
     checker.same_on_both_sides(reaction);
     Verdict {
         balance: Balance { mass, charge, site },
         table,
         diagnostics: checker.diags,
-    }
-}
-
-/// When the species of a failing reaction balance in exactly one way, the
-/// first balance diagnostic's help shows that form (only failing reactions
-/// pay for the balancer).
-fn balanced_hint(reaction: &Reaction, host: Option<&Host>, diags: &mut [Diagnostic]) {
-    let Some(text) = crate::balance::balanced_text(reaction, host) else {
-        return;
-    };
-    let first = diags.iter_mut().find(|d| {
-        matches!(
-            d.code,
-            Code::MassBalance | Code::ChargeBalance | Code::SiteBalance
-        )
-    });
-    if let Some(d) = first {
-        d.help = Some(match (&d.help, &d.label) {
-            // Keep the pointer at a mistyped charge mark beside the other fix.
-            (Some(culprit), Some(_)) if d.code == Code::ChargeBalance => {
-                format!("{culprit}; or, with the marks as written, balanced, it reads: {text}")
-            }
-            _ => format!("balanced, it reads: {text}"),
-        });
     }
 }
 

@@ -7,9 +7,12 @@
 //! (`check_reader`), or each chunk of lines (`check_reader_parallel`, which
 //! parses and checks a file's lines on all cores and reports them in order).
 
+mod files;
+
+use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
+use crate::check::Verdict;
 use crate::check::rules::{FileLints, Levels, ReactionFacts};
-use crate::check::{Verdict, check_reaction};
 use crate::file::reader::{Line, classify};
 use crate::host::Host;
 use crate::notation::latex_input::{Normalised, looks_like_latex, normalise};
@@ -241,7 +244,7 @@ fn prepare_line(number: u32, bytes: &[u8], hosts: &HostState) -> Prepared {
             }
             let verdict = parsed
                 .as_ref()
-                .map(|r| check_reaction(r, hosts.host.as_deref()));
+                .map(|r| check_with_hint(r, hosts.host.as_deref()));
             if let Some(v) = &verdict {
                 for d in &v.diagnostics {
                     if d.code == Code::NoHost {

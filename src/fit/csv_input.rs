@@ -11,8 +11,9 @@ use crate::base::diagnostic::{Code, Diagnostic};
 use std::collections::HashMap;
 use std::ops::Range;
 
-/// 1 atm in bar (exact by definition: 101 325 Pa).
-pub const BAR_PER_ATM: f64 = 1.01325;
+/// 1 atm in bar, defined beside the fit (kept here for the readers of this module).
+pub use super::BAR_PER_ATM;
+
 /// Offset between degrees Celsius and kelvin (exact).
 pub const CELSIUS_OFFSET: f64 = 273.15;
 

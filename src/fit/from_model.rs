@@ -71,6 +71,14 @@ enum Place {
     Unknown,
 }
 
+impl ModelRegimes {
+    /// The exact regimes of a defect model (see `model_regimes`). Defined
+    /// here, beside the conversion, so that `regimes` never reaches back.
+    pub fn from_model(model: &Model) -> Result<Self, Diagnostic> {
+        model_regimes(model)
+    }
+}
+
 /// Converts a model's exact regimes for the fit.
 pub fn model_regimes(model: &Model) -> Result<ModelRegimes, Diagnostic> {
     let Some(oxygen) = model.oxygen() else {

@@ -8,8 +8,9 @@
 //! slopes (`segment`), the decomposition σ = σ_ion + σ_n°·pO2^a + σ_p°·pO2^b
 //! with transference numbers and electrolytic domain boundaries
 //! (`decompose`), and across isotherms the Arrhenius fits of each term with
-//! the reaction enthalpies the regime implies (`arrhenius`). `report` writes
-//! it as a table and fitted-curve CSV, `svg` draws it.
+//! the reaction enthalpies the regime implies (`arrhenius`). The result is plain
+//! data: `crate::report::fit` writes it as a table and fitted-curve CSV,
+//! `crate::report::svg::render_fit` draws it.
 //!
 //! Everything that can mislead is carried in the report, not hidden: poor
 //! fits, slopes that match no regime, terms not detected, boundaries
@@ -25,9 +26,7 @@ pub mod decompose;
 pub mod from_model;
 pub mod linalg;
 pub mod regimes;
-pub mod report;
 pub mod segment;
-pub mod svg;
 
 #[cfg(test)]
 mod tests;
@@ -38,6 +37,17 @@ use linalg::critical_value;
 use regimes::{CarrierLaw, ModelRegimes, Regime, SlopeMatch, match_slope};
 use segment::{BicEntry, SegmentOptions};
 use std::fmt;
+
+/// 1 atm in bar (exact by definition: 101 325 Pa).
+pub const BAR_PER_ATM: f64 = 1.01325;
+
+/// A number in compact scientific form: `1.23e-20`.
+pub fn sci(v: f64) -> String {
+    if v == 0.0 {
+        return "0".into();
+    }
+    format!("{v:.2e}")
+}
 
 /// One measurement, in kelvin, bar and S/cm.
 #[derive(Debug, Clone, PartialEq)]
@@ -345,7 +355,7 @@ pub fn analyse(
         constants: Constants {
             k_b_ev_per_k: arrhenius::K_B_EV,
             kj_per_mol_per_ev: KJ_PER_MOL_PER_EV,
-            bar_per_atm: csv_input::BAR_PER_ATM,
+            bar_per_atm: BAR_PER_ATM,
         },
         isotherms,
         arrhenius,
@@ -484,8 +494,8 @@ fn analyse_isotherm(
                         notes.push(format!(
                             "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
                             iso.label,
-                            report::sci(seg.po2_min_bar),
-                            report::sci(seg.po2_max_bar),
+                            sci(seg.po2_min_bar),
+                            sci(seg.po2_max_bar),
                             seg.slope,
                             regimes::slope_text(seg.matching.nearest)
                         ));
@@ -497,9 +507,9 @@ fn analyse_isotherm(
                     notes.push(format!(
                         "isotherm {}: the boundary {name} at pO2 = {} bar lies outside the measured {} … {} bar; it is extrapolated along the fitted power laws",
                         iso.label,
-                        report::sci(b.po2_bar),
-                        report::sci(po2.first().copied().unwrap_or(0.0)),
-                        report::sci(po2.last().copied().unwrap_or(0.0)),
+                        sci(b.po2_bar),
+                        sci(po2.first().copied().unwrap_or(0.0)),
+                        sci(po2.last().copied().unwrap_or(0.0)),
                     ));
                 }
             }

@@ -202,13 +202,6 @@ impl ModelRegimes {
         }
     }
 
-    /// The exact regimes of a defect model (see `super::from_model`).
-    pub fn from_model(
-        model: &crate::model::Model,
-    ) -> Result<Self, crate::base::diagnostic::Diagnostic> {
-        super::from_model::model_regimes(model)
-    }
-
     /// The regime the decomposition takes its exponents from: `name` if
     /// given, else the model's default, else the first regime whose three
     /// slopes are distinct with n falling and p rising.

@@ -13,9 +13,9 @@ pub mod law;
 pub mod network;
 pub mod thermo;
 
+use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
-use crate::check::check_reaction;
 use crate::file::reader::{Line, classify};
 use crate::host::{Host, SiteLookup};
 use crate::model::law::{Factor, FactorKind, Law, mass_action_law};
@@ -176,7 +176,7 @@ pub fn read(source: &str, text: &str, default_host: Option<Host>) -> Document {
                 let host = current_host.and_then(|i| doc.hosts.get(i)).map(|(h, _)| h);
                 let mut ok = false;
                 if let Some(r) = &parsed {
-                    let verdict = check_reaction(r, host);
+                    let verdict = check_with_hint(r, host);
                     ok = verdict.ok();
                     diags.extend(verdict.diagnostics);
                 }

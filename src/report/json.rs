@@ -77,8 +77,9 @@ impl<W: Write> JsonSink<W> {
     }
 }
 
+/// Keeps the kind of a failed write (a closed pipe stays a closed pipe).
 fn to_io(e: serde_json::Error) -> io::Error {
-    io::Error::other(e)
+    io::Error::from(e)
 }
 
 impl<W: Write> Sink for JsonSink<W> {

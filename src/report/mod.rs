@@ -1,9 +1,15 @@
-//! Renderers: one per output format, all fed by the engine's `Sink` calls.
+//! The reporting layer: every text, table, colour and plot writer.
 //!
-//! Colour is decided once, by the caller, and passed in as a `Palette`; the
-//! checker never sees it.
+//! The check renderers (one per output format) are fed by the runner's
+//! `Sink` calls; `balance`, `dope` and `fit` write those stages' results,
+//! which are plain data; `svg` is the one SVG writer. Colour is decided at
+//! print time, by the caller, and passed in as a `Palette`; the domain
+//! never sees it.
 
+pub mod balance;
 pub mod csv;
+pub mod dope;
+pub mod fit;
 pub mod gnu;
 pub mod human;
 #[cfg(feature = "serde")]

@@ -214,7 +214,7 @@ impl<W: Write> Sink for SarifSink<W> {
                 results: std::mem::take(&mut self.results),
             }],
         };
-        serde_json::to_writer_pretty(&mut self.out, &log).map_err(io::Error::other)?;
+        serde_json::to_writer_pretty(&mut self.out, &log).map_err(io::Error::from)?;
         writeln!(self.out)?;
         self.out.flush()
     }

@@ -1,11 +1,17 @@
-//! A light, hand-written SVG line diagram for defect concentrations.
+//! The one SVG writer: light, hand-written line diagrams.
 //!
-//! In: a `Plot` (labelled series of (x, y) points in log units, regime
-//! boundaries, per-segment labels such as slopes, shaded ranges with a
-//! note). Out: one self-contained SVG document as a string. Species names
-//! are typeset in Kröger–Vink notation with real subscripts and
-//! superscripts. Nothing here knows chemistry: the caller decides what the
-//! axes mean.
+//! The shared pieces (document, background, frame, escaping) are here, with
+//! the diagram for defect concentrations. In: a `Plot` (labelled series of
+//! (x, y) points in log units, regime boundaries, per-segment labels such
+//! as slopes, shaded ranges with a note). Out: one self-contained SVG
+//! document as a string. Species names are typeset in Kröger–Vink notation
+//! with real subscripts and superscripts. Nothing here knows chemistry: the
+//! caller decides what the axes mean. `fit` draws a fit report with the
+//! same pieces.
+
+mod fit;
+
+pub use fit::render_fit;
 
 use std::fmt::Write;
 
@@ -64,6 +70,28 @@ fn escape(text: &str) -> String {
         .replace('<', "&lt;")
         .replace('>', "&gt;")
         .replace('"', "&quot;")
+}
+
+/// Opens a document `width` × `height` with a white background.
+fn open(svg: &mut String, width: f64, height: f64, font_size: u32) {
+    let _ = writeln!(
+        svg,
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" font-family=\"DejaVu Sans, Helvetica, Arial, sans-serif\" font-size=\"{font_size}\">"
+    );
+    let _ = writeln!(svg, "<rect width=\"100%\" height=\"100%\" fill=\"white\"/>");
+}
+
+/// The frame around the plotting area.
+fn frame(svg: &mut String, left: f64, top: f64, width: f64, height: f64) {
+    let _ = writeln!(
+        svg,
+        "<rect x=\"{left}\" y=\"{top}\" width=\"{width}\" height=\"{height}\" fill=\"none\" stroke=\"#333\"/>"
+    );
+}
+
+/// Closes the document.
+fn close(svg: &mut String) {
+    svg.push_str("</svg>\n");
 }
 
 fn is_mark(c: char) -> bool {
@@ -200,11 +228,7 @@ pub fn render(plot: &Plot, y_decades: f64) -> String {
     let sx = |x: f64| LEFT + (x - x_min) / (x_max - x_min) * plot_w;
     let sy = |y: f64| TOP + (y_max - y) / (y_max - y_min) * plot_h;
     let mut svg = String::new();
-    let _ = writeln!(
-        svg,
-        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{WIDTH}\" height=\"{total_height}\" viewBox=\"0 0 {WIDTH} {total_height}\" font-family=\"DejaVu Sans, Helvetica, Arial, sans-serif\" font-size=\"13\">"
-    );
-    let _ = writeln!(svg, "<rect width=\"100%\" height=\"100%\" fill=\"white\"/>");
+    open(&mut svg, WIDTH, total_height, 13);
     let _ = writeln!(
         svg,
         "<text x=\"{}\" y=\"30\" font-size=\"16\" font-weight=\"bold\">{}</text>",
@@ -223,10 +247,7 @@ pub fn render(plot: &Plot, y_decades: f64) -> String {
         }
     }
     // Frame and ticks.
-    let _ = writeln!(
-        svg,
-        "<rect x=\"{LEFT}\" y=\"{TOP}\" width=\"{plot_w}\" height=\"{plot_h}\" fill=\"none\" stroke=\"#333\"/>"
-    );
+    frame(&mut svg, LEFT, TOP, plot_w, plot_h);
     let x_step = nice_step(x_max - x_min, 10.0);
     let mut t = (x_min / x_step).ceil() * x_step;
     while t <= x_max + 1e-9 {
@@ -398,7 +419,7 @@ pub fn render(plot: &Plot, y_decades: f64) -> String {
         );
         foot_y += 16.0;
     }
-    svg.push_str("</svg>\n");
+    close(&mut svg);
     svg
 }
 

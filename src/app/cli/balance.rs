@@ -2,15 +2,18 @@
 //! Exit 0 when the species balance (uniquely or in several ways), 1 when
 //! they cannot or the reaction has errors, 2 for usage errors.
 
-use super::{ColorChoice, fail, host_argument};
-use crate::balance::report::{check_and_balance, write_outcome};
+use super::shared::{
+    ColorChoice, JsonDiagnostic, NotationStyle, OutputFormat, fail, host_argument, print_json,
+};
+use crate::balance::checked::check_and_balance;
 use crate::balance::{Outcome, Status};
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
 use crate::host::Host;
-use crate::notation::{Style, parse_reaction, render_reaction};
+use crate::notation::{parse_reaction, render_reaction};
+use crate::report::balance::write_outcome;
 use crate::report::{Palette, human::write_diagnostic};
-use clap::{Args, ValueEnum};
+use clap::Args;
 use serde::Serialize;
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -46,38 +49,6 @@ pub struct BalanceArgs {
     pub color: ColorChoice,
 }
 
-/// Output format of the generating commands (`balance`, `dope`, `native`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum OutputFormat {
-    /// Text for people.
-    Human,
-    /// Machine-readable (stable keys).
-    Json,
-}
-
-/// Which spelling of Kröger–Vink notation to print.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum NotationStyle {
-    /// `V_O••`, `Y_Zr′`, `→`
-    Unicode,
-    /// `V_O..`, `Y_Zr'`, `->`
-    Ascii,
-    /// LaTeX math
-    Latex,
-}
-
-impl NotationStyle {
-    pub fn style(self) -> Style {
-        match self {
-            NotationStyle::Unicode => Style::Unicode,
-            NotationStyle::Ascii => Style::Ascii,
-            NotationStyle::Latex => Style::Latex,
-        }
-    }
-}
-
-pub use crate::report::json::JsonDiagnostic;
-
 #[derive(Debug, Serialize)]
 struct JsonTerm<'a> {
     species: &'a str,
@@ -96,16 +67,6 @@ struct JsonReport<'a> {
     status: &'static str,
     reactions: Vec<JsonReaction<'a>>,
     diagnostics: Vec<JsonDiagnostic<'a>>,
-}
-
-/// Writes `value` as pretty JSON and a newline to stdout.
-pub fn print_json<T: Serialize>(value: &T) -> io::Result<()> {
-    // Serialise first, so a closed pipe surfaces as an I/O error of its own kind.
-    let mut text = serde_json::to_string_pretty(value).map_err(io::Error::other)?;
-    text.push('\n');
-    let mut out = io::stdout().lock();
-    out.write_all(text.as_bytes())?;
-    out.flush()
 }
 
 pub fn run(args: &BalanceArgs) -> ExitCode {

@@ -3,7 +3,7 @@
 //! terminal table, CSV, JSON or an SVG diagram.
 
 use super::model_input::{diagnostic_json, gather, print_diagnostics};
-use super::{ColorChoice, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
 use crate::model::thermo::{self, sig, temperature_text};

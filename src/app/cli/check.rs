@@ -1,17 +1,30 @@
 //! `lacuna check`: the three balances and the lint rules over files,
 //! folders, stdin and inline reactions.
 
-use super::{ColorChoice, Format, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument, output_failed, reaction_files};
 use crate::check::rules::{Level, Levels, find_config};
-use crate::file::runner::{Checker, Recording, Sink, Summary};
-use crate::host::Host;
+use crate::file::runner::{Checker, Sink};
 use crate::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
-use clap::Args;
-use rayon::prelude::*;
+use clap::{Args, ValueEnum};
+use std::cell::Cell;
 use std::fs::File;
 use std::io::{self, BufReader, BufWriter, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::rc::Rc;
+
+/// Output format of `check`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Annotated text for people.
+    Human,
+    /// Machine-readable report (stable keys).
+    Json,
+    /// One `file:line:column: severity: message` line per problem.
+    Gnu,
+    /// SARIF 2.1.0 for code-scanning services.
+    Sarif,
+}
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
@@ -52,10 +65,6 @@ pub struct CheckArgs {
     pub config: Option<PathBuf>,
 }
 
-/// Folder searches hand out this many files to the worker threads at a time,
-/// so results are printed in order while memory stays bounded.
-const BATCH: usize = 256;
-
 pub fn run(args: &CheckArgs) -> ExitCode {
     if args.files.is_empty() && args.reactions.is_empty() {
         return fail(
@@ -71,7 +80,11 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         Err(message) => return fail(message),
     };
     let stdout = io::stdout();
-    let out = BufWriter::new(stdout.lock());
+    let written = Rc::new(Cell::new(true));
+    let out = Watched {
+        inner: BufWriter::new(stdout.lock()),
+        ok: Rc::clone(&written),
+    };
     let mut sink: Box<dyn Sink> = match args.format {
         Format::Human => {
             let mut human = HumanSink::new(out, args.color.palette());
@@ -83,7 +96,6 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         Format::Gnu => Box::new(GnuSink::new(out)),
         Format::Sarif => Box::new(SarifSink::new(out)),
     };
-    let keep_passing = sink.wants_passing();
     let mut io_failed = false;
     let mut checker = Checker::new(host.clone(), sink.as_mut()).with_levels(levels.clone());
     for path in &args.files {
@@ -92,14 +104,19 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         } else if path.is_dir() {
             let (files, walk_failed) = reaction_files(path);
             io_failed |= walk_failed;
-            check_in_parallel(&mut checker, &files, host.as_ref(), &levels, keep_passing)
-                .map(|failed| io_failed |= failed)
+            checker.check_files(&files).map(|unreadable| {
+                for (path, e) in unreadable {
+                    io_failed = true;
+                    let _ = writeln!(io::stderr(), "lacuna: cannot read {}: {e}", path.display());
+                }
+            })
         } else {
-            check_file(&mut checker, path, true)
+            check_file(&mut checker, path)
         };
         if let Err(e) = result {
-            if e.kind() == io::ErrorKind::BrokenPipe {
-                return ExitCode::from(2);
+            // The report could not be written: stop, whatever is left.
+            if !written.get() {
+                return output_failed(&e);
             }
             io_failed = true;
             let _ = writeln!(io::stderr(), "lacuna: cannot read {}: {e}", path.display());
@@ -114,28 +131,39 @@ pub fn run(args: &CheckArgs) -> ExitCode {
             .collect::<Vec<_>>()
             .join("\n");
         if let Err(e) = checker.check_text("<inline>", &joined) {
-            return fail(e);
+            return output_failed(&e);
         }
     }
     match checker.finish() {
         Ok(_) if io_failed => ExitCode::from(2),
         Ok(summary) if summary.clean() => ExitCode::SUCCESS,
         Ok(_) => ExitCode::from(1),
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
     }
 }
 
-/// Checks one file; `parallel` spreads its lines over the cores (for a file
-/// named alone; files of a folder are already checked side by side).
-fn check_file(checker: &mut Checker<'_>, path: &Path, parallel: bool) -> io::Result<()> {
+/// Checks one file named alone, its lines spread over the cores (files of
+/// a folder are checked side by side instead).
+fn check_file(checker: &mut Checker<'_>, path: &Path) -> io::Result<()> {
     let file = File::open(path)?;
     let reader = BufReader::with_capacity(1 << 16, file);
-    let name = path.display().to_string();
-    if parallel {
-        checker.check_reader_parallel(&name, reader)
-    } else {
-        checker.check_reader(&name, reader)
+    checker.check_reader_parallel(&path.display().to_string(), reader)
+}
+
+/// Standard output that remembers a failed write, so that a failure of the
+/// report (a closed pipe, a full disk) is told from a file that cannot be read.
+struct Watched<W> {
+    inner: W,
+    ok: Rc<Cell<bool>>,
+}
+
+impl<W: Write> Write for Watched<W> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.inner.write(buf).inspect_err(|_| self.ok.set(false))
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.inner.flush().inspect_err(|_| self.ok.set(false))
     }
 }
 
@@ -166,77 +194,4 @@ fn levels(args: &CheckArgs) -> Result<Levels, String> {
         }
     }
     Ok(levels)
-}
-
-/// The `.kvr` files below `folder`, sorted, honouring ignore files. Problems
-/// met on the way (unreadable folders, link loops) are printed and flagged.
-pub fn reaction_files(folder: &Path) -> (Vec<PathBuf>, bool) {
-    let mut files = Vec::new();
-    let mut failed = false;
-    let walker = ignore::WalkBuilder::new(folder)
-        .follow_links(true)
-        .add_custom_ignore_filename(".lacunaignore")
-        .require_git(false)
-        .build();
-    for entry in walker {
-        match entry {
-            Ok(entry) => {
-                let path = entry.path();
-                if entry.file_type().is_some_and(|t| t.is_file())
-                    && path
-                        .extension()
-                        .is_some_and(|e| e == crate::file::reader::EXTENSION)
-                {
-                    files.push(path.to_path_buf());
-                }
-            }
-            Err(e) => {
-                failed = true;
-                let _ = writeln!(io::stderr(), "lacuna: {e}");
-            }
-        }
-    }
-    files.sort();
-    (files, failed)
-}
-
-/// One file checked on a worker thread: its events, totals and read error.
-type FileResult = (Recording, Summary, Option<(PathBuf, io::Error)>);
-
-/// Checks files on all cores, then replays each file's results in order.
-fn check_in_parallel(
-    checker: &mut Checker<'_>,
-    files: &[PathBuf],
-    host: Option<&Host>,
-    levels: &Levels,
-    keep_passing: bool,
-) -> io::Result<bool> {
-    let mut failed = false;
-    for batch in files.chunks(BATCH) {
-        let results: Vec<FileResult> = batch
-            .par_iter()
-            .map(|path| {
-                let mut recording = Recording {
-                    events: Vec::new(),
-                    keep_passing,
-                };
-                let mut local =
-                    Checker::new(host.cloned(), &mut recording).with_levels(levels.clone());
-                let error = check_file(&mut local, path, false)
-                    .err()
-                    .map(|e| (path.clone(), e));
-                let summary = local.summary;
-                (recording, summary, error)
-            })
-            .collect();
-        for (recording, summary, error) in results {
-            recording.replay(checker.sink())?;
-            checker.absorb(&summary);
-            if let Some((path, e)) = error {
-                failed = true;
-                let _ = writeln!(io::stderr(), "lacuna: cannot read {}: {e}", path.display());
-            }
-        }
-    }
-    Ok(failed)
 }

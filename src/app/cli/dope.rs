@@ -3,17 +3,18 @@
 //! least one mechanism balances, 1 when none does or the level cannot be
 //! reached, 2 for usage errors (unreadable host, dopant, site or level).
 
-use super::balance::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
-use super::{ColorChoice, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument};
+use super::shared::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
+use crate::generate::dope::compound_text;
 use crate::generate::dope::level::{self, Composition, Level, Volume};
-use crate::generate::dope::table::{TableInput, compound_text, write_report};
 use crate::generate::dope::{
     CAVEAT, Dopant, DopeOptions, Gas, Report, SizeMatch, compensating_text, mechanisms,
     parse_dopant, parse_site, reaction_text, site_name,
 };
 use crate::host::Host;
+use crate::report::dope::{TableInput, write_report};
 use crate::report::human::write_diagnostic;
 use clap::Args;
 use serde::Serialize;

@@ -1,9 +1,10 @@
 //! `lacuna explain`: what a diagnostic code means.
 
-use super::fail;
+use super::shared::{fail, finish, stdout};
 use crate::base::diagnostic::Code;
 use crate::check::rules::rule_name;
 use clap::Args;
+use std::io::{self, Write};
 use std::process::ExitCode;
 
 #[derive(Debug, Args)]
@@ -13,36 +14,46 @@ pub struct ExplainArgs {
 }
 
 pub fn run(args: &ExplainArgs) -> ExitCode {
-    match &args.code {
-        None => {
-            for code in Code::ALL {
-                println!(
-                    "{}  {:<8} {}",
-                    code.as_str(),
-                    code.default_severity().as_str(),
-                    rule_name(*code)
-                );
-            }
-            ExitCode::SUCCESS
-        }
+    let mut out = stdout();
+    let written = match &args.code {
+        None => list(&mut out),
         Some(name) => {
             let found = Code::from_str_id(name)
                 .or_else(|| Code::ALL.iter().copied().find(|c| rule_name(*c) == *name));
             match found {
-                Some(code) => {
-                    println!(
-                        "{} ({}, {} by default)\n",
-                        code.as_str(),
-                        rule_name(code),
-                        code.default_severity().as_str()
-                    );
-                    println!("{}", code.explanation());
-                    ExitCode::SUCCESS
+                Some(code) => explain(&mut out, code),
+                None => {
+                    return fail(format!(
+                        "`{name}` is not a diagnostic code; `lacuna explain` lists them all"
+                    ));
                 }
-                None => fail(format!(
-                    "`{name}` is not a diagnostic code; `lacuna explain` lists them all"
-                )),
             }
         }
+    };
+    finish(written, ExitCode::SUCCESS)
+}
+
+/// Every code, its default severity and rule name, one a line.
+fn list(out: &mut dyn Write) -> io::Result<()> {
+    for code in Code::ALL {
+        writeln!(
+            out,
+            "{}  {:<8} {}",
+            code.as_str(),
+            code.default_severity().as_str(),
+            rule_name(*code)
+        )?;
     }
+    Ok(())
+}
+
+fn explain(out: &mut dyn Write, code: Code) -> io::Result<()> {
+    writeln!(
+        out,
+        "{} ({}, {} by default)\n",
+        code.as_str(),
+        rule_name(code),
+        code.default_severity().as_str()
+    )?;
+    writeln!(out, "{}", code.explanation())
 }

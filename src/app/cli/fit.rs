@@ -4,14 +4,15 @@
 //! (SVG) to files.
 
 use super::model_input::{gather, print_diagnostics};
-use super::{ColorChoice, fail};
+use super::shared::{ColorChoice, fail};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::fit::arrhenius::ArrheniusForm;
 use crate::fit::regimes::ModelRegimes;
 use crate::fit::segment::SegmentOptions;
-use crate::fit::{FitError, FitOptions, analyse, csv_input, report, svg};
+use crate::fit::{FitError, FitOptions, analyse, csv_input};
 use crate::model::{self, Model, Overrides};
 use crate::report::Palette;
+use crate::report::{fit as report, svg};
 use clap::{Args, ValueEnum};
 use std::io::{self, Read, Write};
 use std::path::{Path, PathBuf};
@@ -161,7 +162,7 @@ pub fn run(args: &FitArgs) -> ExitCode {
         }
     }
     if let Some(path) = &args.svg {
-        if let Err(e) = std::fs::write(path, svg::render(&report)) {
+        if let Err(e) = std::fs::write(path, svg::render_fit(&report)) {
             return fail(format!("cannot write {}: {e}", path.display()));
         }
     }
@@ -170,7 +171,7 @@ pub fn run(args: &FitArgs) -> ExitCode {
     let written = match args.format {
         FitFormat::Table => report::write_table(&mut out, &report, args.color.palette()),
         FitFormat::Json => serde_json::to_writer_pretty(&mut out, &report)
-            .map_err(io::Error::other)
+            .map_err(io::Error::from)
             .and_then(|_| writeln!(out)),
     };
     match written.and_then(|_| out.flush()) {

@@ -1,6 +1,6 @@
 //! `lacuna fmt`: rewrite reaction files in the canonical layout.
 
-use super::check::reaction_files;
+use super::shared::{output_failed, reaction_files, stdout};
 use crate::file::layout::{MarkSpelling, format_text};
 use crate::report::{Palette, human::write_diagnostic};
 use clap::{Args, ValueEnum};
@@ -78,7 +78,9 @@ pub fn run(args: &FmtArgs) -> ExitCode {
             }
         };
         if name == "<stdin>" {
-            print!("{formatted}");
+            if let Err(e) = stdout().write_all(formatted.as_bytes()) {
+                return output_failed(&e);
+            }
             continue;
         }
         if formatted == text {
@@ -86,14 +88,16 @@ pub fn run(args: &FmtArgs) -> ExitCode {
         }
         changed += 1;
         if args.check {
-            print_diff(&name, &text, &formatted);
+            if let Err(e) = print_diff(&name, &text, &formatted) {
+                return output_failed(&e);
+            }
         } else if args.write {
             if let Err(e) = write_atomically(path, &formatted) {
                 io_failed = true;
                 let _ = writeln!(io::stderr(), "lacuna: cannot write {}: {e}", path.display());
             }
-        } else {
-            print!("{formatted}");
+        } else if let Err(e) = stdout().write_all(formatted.as_bytes()) {
+            return output_failed(&e);
         }
     }
     if args.check && changed > 0 {
@@ -134,16 +138,16 @@ pub fn write_atomically(path: &Path, text: &str) -> io::Result<()> {
 }
 
 /// A line diff: formatting keeps one line per line, so pairs suffice.
-fn print_diff(name: &str, old: &str, new: &str) {
-    let stdout = io::stdout();
-    let mut out = stdout.lock();
-    let _ = writeln!(out, "--- {name}\n+++ {name} (formatted)");
+fn print_diff(name: &str, old: &str, new: &str) -> io::Result<()> {
+    let mut out = stdout();
+    writeln!(out, "--- {name}\n+++ {name} (formatted)")?;
     for (i, (a, b)) in old.lines().zip(new.lines()).enumerate() {
         if a != b {
-            let _ = writeln!(out, "@@ line {} @@\n-{a}\n+{b}", i + 1);
+            writeln!(out, "@@ line {} @@\n-{a}\n+{b}", i + 1)?;
         }
     }
     if old.ends_with('\n') != new.ends_with('\n') {
-        let _ = writeln!(out, "@@ end of file @@\n+(newline at end of file)");
+        writeln!(out, "@@ end of file @@\n+(newline at end of file)")?;
     }
+    Ok(())
 }

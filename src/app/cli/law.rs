@@ -2,7 +2,7 @@
 //! units of K, as Unicode, plain text, LaTeX or JSON.
 
 use super::model_input::{Source, diagnostic_json, gather, print_diagnostics};
-use super::{ColorChoice, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
 use crate::model::law::{FactorKind, Law, k_of_t_text, mass_action_law, write_law_text};

@@ -1,6 +1,11 @@
 //! The command line: argument definitions and one function per command, each
 //! a thin layer over the library. Exit codes: 0 all good, 1 the input has
-//! problems, 2 usage or I/O error.
+//! problems, 2 usage or I/O error (a closed pipe or a full disk included).
+//!
+//! This file parses the arguments and hands each command its own; the
+//! commands share `shared` (colour, formats, `fail`, the folder search) and
+//! `model_input`, and never import this file, one another or the workbench
+//! (`repl` only starts it).
 
 mod balance;
 mod brouwer;
@@ -13,12 +18,12 @@ mod law;
 mod model_input;
 mod native;
 mod repl;
+mod shared;
 mod typeset;
 
-use crate::host::Host;
-use crate::report::Palette;
-use clap::{Parser, Subcommand, ValueEnum};
-use std::io::{self, IsTerminal, Write};
+use clap::{Parser, Subcommand};
+use shared::output_failed;
+use std::io::{self, Write};
 use std::process::ExitCode;
 
 /// Point-defect chemistry in Kröger–Vink notation.
@@ -63,46 +68,36 @@ pub enum Command {
     Brouwer(brouwer::BrouwerArgs),
 }
 
-/// Output format of `check`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum Format {
-    /// Annotated text for people.
-    Human,
-    /// Machine-readable report (stable keys).
-    Json,
-    /// One `file:line:column: severity: message` line per problem.
-    Gnu,
-    /// SARIF 2.1.0 for code-scanning services.
-    Sarif,
-}
-
-/// When to colour terminal output.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum ColorChoice {
-    Auto,
-    Always,
-    Never,
-}
-
-impl ColorChoice {
-    /// Decides colour for standard output: `auto` colours a terminal unless
-    /// NO_COLOR is set.
-    pub fn palette(self) -> Palette {
-        let enabled = match self {
-            ColorChoice::Always => true,
-            ColorChoice::Never => false,
-            ColorChoice::Auto => {
-                io::stdout().is_terminal()
-                    && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
-            }
-        };
-        Palette { enabled }
+/// Parses the process arguments and runs the command.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        // Help, the version and usage errors, written like any output.
+        Err(e) => return parse_failed(&e),
+    };
+    let code = run(cli);
+    // What is still buffered must reach the reader, or the exit says it did
+    // not (once: a command that already failed has said why).
+    match io::stdout().flush() {
+        Ok(()) => code,
+        Err(_) if shared::failed_already() => ExitCode::from(2),
+        Err(e) => output_failed(&e),
     }
 }
 
-/// Parses the process arguments and runs the command.
-pub fn main() -> ExitCode {
-    let cli = Cli::parse();
+/// Prints what the argument parser has to say (help and the version on
+/// standard output, usage errors on standard error) and exits with its
+/// code, or with 2 when the help cannot be written.
+fn parse_failed(e: &clap::Error) -> ExitCode {
+    let written = e.print().and_then(|()| io::stdout().flush());
+    match written {
+        Ok(()) => ExitCode::from(u8::try_from(e.exit_code()).unwrap_or(2)),
+        Err(_) if e.use_stderr() => ExitCode::from(2),
+        Err(err) => output_failed(&err),
+    }
+}
+
+fn run(cli: Cli) -> ExitCode {
     match cli.command {
         Some(Command::Check(args)) => check::run(&args),
         Some(Command::Fmt(args)) => fmt::run(&args),
@@ -124,28 +119,4 @@ pub fn main() -> ExitCode {
             ExitCode::from(2)
         }
     }
-}
-
-/// Prints a usage or I/O problem to stderr and returns exit code 2.
-pub fn fail(message: impl std::fmt::Display) -> ExitCode {
-    let _ = writeln!(io::stderr(), "lacuna: {message}");
-    ExitCode::from(2)
-}
-
-/// Parses a `--host` value, printing its diagnostics as a usage error.
-pub fn host_argument(spec: &str) -> Result<Host, ExitCode> {
-    Host::from_spec(spec).map_err(|diagnostics| {
-        let mut stderr = io::stderr();
-        for d in diagnostics {
-            let d = d.locate(1, spec);
-            let _ = crate::report::human::write_diagnostic(
-                &mut stderr,
-                Palette::PLAIN,
-                "--host",
-                spec,
-                &d,
-            );
-        }
-        fail("the --host value is not a usable host")
-    })
 }

@@ -1,7 +1,7 @@
 //! Reading reaction files and inline reactions for the model commands, and
 //! printing their diagnostics.
 
-use super::fail;
+use super::shared::fail;
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::report::{Palette, human};
 use std::io::{self, Read, Write};

@@ -1,7 +1,7 @@
 //! `lacuna native`: the intrinsic defect reactions of a host, balanced.
 
-use super::balance::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
-use super::{ColorChoice, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument};
+use super::shared::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::generate::native::catalogue;
 use crate::notation::render_reaction;

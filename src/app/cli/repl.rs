@@ -2,7 +2,7 @@
 //! on a terminal). Without a terminal it reads commands line by line from
 //! standard input and prints plain output, so scripts can drive it.
 
-use super::{ColorChoice, fail};
+use super::shared::{ColorChoice, fail, output_failed};
 use crate::app::workbench::Session;
 use crate::app::workbench::driver::{self, TerminalOptions};
 use crate::report::Palette;
@@ -71,7 +71,7 @@ pub fn run(args: &ReplArgs) -> ExitCode {
     if let Some(file) = &args.file {
         let line = format!("/load {}", file.display());
         if let Err(e) = session.handle_line(&line, 0, &mut stdout.lock()) {
-            return fail(e);
+            return output_failed(&e);
         }
     }
     let result = if interactive {
@@ -94,8 +94,7 @@ pub fn run(args: &ReplArgs) -> ExitCode {
         driver::run_script(&mut session, io::stdin().lock(), &mut out).and_then(|()| out.flush())
     };
     match result {
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
         Ok(()) if interactive || session.problems == 0 => ExitCode::SUCCESS,
         Ok(()) => ExitCode::from(1),
     }

@@ -3,7 +3,7 @@
 //! reaction pasted from a manuscript); checks what it typesets and reports
 //! problems on stderr, but always writes what the input says.
 
-use super::{ColorChoice, fail, host_argument};
+use super::shared::{ColorChoice, fail, host_argument};
 use crate::app::workbench::{HostSlot, analyse};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::check::Verdict;

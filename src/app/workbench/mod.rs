@@ -22,8 +22,9 @@ mod store;
 
 pub use commands::COMMANDS;
 
+use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
-use crate::check::{Verdict, check_reaction};
+use crate::check::Verdict;
 use crate::file::reader::{self, Line};
 use crate::host::Host;
 use crate::notation::latex_input::{self, looks_like_latex};
@@ -286,7 +287,7 @@ pub fn analyse(line: &str, span: Span, host: Option<&Rc<HostSlot>>) -> Analysis 
         diagnostics.extend(parse_problems);
         let verdict = reaction
             .as_ref()
-            .map(|r| check_reaction(r, host.map(|h| &h.host)));
+            .map(|r| check_with_hint(r, host.map(|h| &h.host)));
         if let Some(v) = &verdict {
             diagnostics.extend(v.diagnostics.iter().cloned());
         }
@@ -352,7 +353,7 @@ pub fn analyse(line: &str, span: Span, host: Option<&Rc<HostSlot>>) -> Analysis 
     );
     let verdict = reaction
         .as_ref()
-        .map(|r| check_reaction(r, effective.as_ref().map(|h| &h.host)));
+        .map(|r| check_with_hint(r, effective.as_ref().map(|h| &h.host)));
     if let Some(v) = &verdict {
         diagnostics.extend(
             v.diagnostics

@@ -20,7 +20,6 @@
 pub mod dopant;
 pub mod level;
 pub mod structure;
-pub mod table;
 
 pub use dopant::{Dopant, parse_dopant};
 pub use structure::{CnSource, Radius, SiteCn, Structure};
@@ -749,6 +748,14 @@ impl Generator<'_> {
             notes,
         }
     }
+}
+
+/// The dopant compound in Unicode, e.g. `Y₂O₃`.
+pub fn compound_text(dopant: &Dopant) -> String {
+    crate::notation::render_term(
+        &crate::balance::build::term(crate::balance::build::compound(dopant.compound.clone())),
+        Style::Unicode,
+    )
 }
 
 /// `Zr` or `i`: a dopant site as text.

@@ -7,11 +7,11 @@
 //! mismatch, reaction) with when it usually dominates, and the caveat that
 //! the ranking is a guide. Colour comes from the caller's `Palette`.
 
-use super::{CAVEAT, CnSource, Dopant, Mechanism, Report, SizeMatch};
-use super::{compensating_text, reaction_text, site_name};
+use super::Palette;
+use crate::generate::dope::{CAVEAT, CnSource, Dopant, Mechanism, Report, SizeMatch};
+use crate::generate::dope::{compensating_text, compound_text, reaction_text, site_name};
 use crate::host::Host;
-use crate::notation::{Style, render_term};
-use crate::report::Palette;
+use crate::notation::Style;
 use std::io::{self, Write};
 
 /// What the table shows.
@@ -46,14 +46,6 @@ fn width(text: &str) -> usize {
 
 fn pad(text: &str, to: usize) -> String {
     format!("{text}{}", " ".repeat(to.saturating_sub(width(text))))
-}
-
-/// The dopant compound in Unicode, e.g. `Y₂O₃`.
-pub fn compound_text(dopant: &Dopant) -> String {
-    render_term(
-        &crate::balance::build::term(crate::balance::build::compound(dopant.compound.clone())),
-        Style::Unicode,
-    )
 }
 
 /// Writes the table. `cn_override` says how to override an assumed

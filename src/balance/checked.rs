@@ -1,18 +1,16 @@
-//! What `lacuna balance` and the workbench's `/balance` print.
+//! The check before a balance, as `lacuna balance` and the workbench's
+//! `/balance` run it.
 //!
 //! In: a parsed reaction, the host and the problems already found in its
 //! text. Out: the balancer's `Outcome` with every finding that still stands
 //! (the checker's plausibility findings; its balance failures are what the
-//! balancer answers), and the outcome written for people: the balanced
-//! reaction, or the independent balanced reactions when there are several.
+//! balancer answers). Writing it for people is `crate::report::balance`.
 
-use super::{Balanced, Options, Outcome, Status, balance};
+use super::{Options, Outcome, Status, balance};
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::check_reaction;
 use crate::host::Host;
-use crate::notation::{Reaction, Style, render_reaction};
-use crate::report::Palette;
-use std::io::{self, Write};
+use crate::notation::Reaction;
 
 /// Checks `reaction` and balances it unless an error stands in the way.
 /// `found` holds problems already found in its text (parsing); an error
@@ -62,45 +60,4 @@ pub fn check_and_balance(
     );
     diagnostics.extend(outcome.diagnostics.iter().cloned());
     (outcome, diagnostics)
-}
-
-/// Writes the balanced reaction (unique) or the numbered basis (several);
-/// nothing for none. `conventional` writes gases fractional. Returns
-/// whether anything was written.
-pub fn write_outcome(
-    out: &mut dyn Write,
-    palette: Palette,
-    outcome: &Outcome,
-    style: Style,
-    conventional: bool,
-) -> io::Result<bool> {
-    let shown = |b: &Balanced| {
-        render_reaction(
-            if conventional {
-                &b.conventional
-            } else {
-                &b.reaction
-            },
-            style,
-        )
-    };
-    match outcome.status {
-        Status::Unique => {
-            for b in &outcome.reactions {
-                writeln!(out, "{}", palette.strong(&shown(b)))?;
-            }
-        }
-        Status::Several => {
-            writeln!(
-                out,
-                "{} independent balanced reactions; every combination of them balances:",
-                outcome.reactions.len()
-            )?;
-            for (i, b) in outcome.reactions.iter().enumerate() {
-                writeln!(out, "  {}. {}", i + 1, palette.strong(&shown(b)))?;
-            }
-        }
-        Status::None => {}
-    }
-    Ok(!outcome.reactions.is_empty())
 }

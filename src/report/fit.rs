@@ -4,18 +4,10 @@
 //! In: the report. Out: text on a writer. Colour comes from the caller's
 //! `Palette`.
 
-use super::regimes::{Verdict, slope_text};
-use super::{FitReport, IsothermReport};
-use crate::report::Palette;
+use super::Palette;
+use crate::fit::regimes::{Verdict, slope_text};
+use crate::fit::{FitReport, IsothermReport, sci};
 use std::io::{self, Write};
-
-/// A number in compact scientific form: `1.23e-20`.
-pub fn sci(v: f64) -> String {
-    if v == 0.0 {
-        return "0".into();
-    }
-    format!("{v:.2e}")
-}
 
 /// `value ± se` with `digits` decimals, or the value alone.
 fn pm(value: f64, se: Option<f64>, digits: usize) -> String {

@@ -2,10 +2,12 @@
 //! isotherm, the decomposition's total curve, the straight pieces dashed and
 //! each piece's slope written beside it.
 //!
-//! In: a `FitReport`. Out: one self-contained SVG document as a string.
+//! In: a `FitReport`. Out: one self-contained SVG document as a string,
+//! drawn with the SVG writer's shared pieces (`super`).
 
-use super::FitReport;
-use super::regimes::{Verdict, slope_text};
+use super::{close, escape, frame, open};
+use crate::fit::FitReport;
+use crate::fit::regimes::{Verdict, slope_text};
 use std::fmt::Write;
 
 const WIDTH: f64 = 760.0;
@@ -18,13 +20,6 @@ const BOTTOM: f64 = 56.0;
 const COLOURS: &[&str] = &[
     "#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
 ];
-
-fn escape(text: &str) -> String {
-    text.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
-}
 
 /// Axis range rounded out to whole decades, and a tick step giving at
 /// most about ten ticks.
@@ -43,7 +38,7 @@ fn axis(lo: f64, hi: f64) -> (f64, f64, f64) {
 }
 
 /// Draws the report.
-pub fn render(r: &FitReport) -> String {
+pub fn render_fit(r: &FitReport) -> String {
     let points = r.isotherms.iter().flat_map(|i| &i.data);
     let (mut xlo, mut xhi, mut ylo, mut yhi) = (
         f64::INFINITY,
@@ -67,21 +62,14 @@ pub fn render(r: &FitReport) -> String {
     let px = |x: f64| LEFT + (x - x0) / (x1 - x0) * pw;
     let py = |y: f64| TOP + (y1 - y) / (y1 - y0) * ph;
     let mut s = String::new();
-    let _ = writeln!(
-        s,
-        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{WIDTH}" height="{HEIGHT}" viewBox="0 0 {WIDTH} {HEIGHT}" font-family="DejaVu Sans, Helvetica, Arial, sans-serif" font-size="12">"#
-    );
-    let _ = writeln!(s, r#"<rect width="100%" height="100%" fill="white"/>"#);
+    open(&mut s, WIDTH, HEIGHT, 12);
     let _ = writeln!(
         s,
         r#"<text x="{LEFT}" y="22" font-size="14">{}</text>"#,
         escape(&format!("σ versus pO₂ — {}", r.source))
     );
     // Frame, grid and ticks.
-    let _ = writeln!(
-        s,
-        r##"<rect x="{LEFT}" y="{TOP}" width="{pw}" height="{ph}" fill="none" stroke="#333"/>"##
-    );
+    frame(&mut s, LEFT, TOP, pw, ph);
     let mut t = x0;
     while t <= x1 + 1e-9 {
         let x = px(t);
@@ -199,7 +187,7 @@ pub fn render(r: &FitReport) -> String {
         lx + 28.0,
         ly + 22.0
     );
-    let _ = writeln!(s, "</svg>");
+    close(&mut s);
     s
 }
 
