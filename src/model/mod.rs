@@ -10,6 +10,7 @@
 //! log-linear `Network` the solvers work on.
 
 pub mod law;
+pub mod laws;
 pub mod network;
 pub mod thermo;
 
@@ -716,6 +717,24 @@ fn model_species(factor: &Factor, host: &Host) -> ModelSpecies {
     }
 }
 
+/// Electroneutrality of charged species `(symbol, charge)`: the negative
+/// ones, each with its charge as a factor, equal the positive ones
+/// (`2[O_i″] + n = 2[V_O••] + p`). Uncharged species are left out.
+pub fn neutrality_text(charged: &[(&str, i32)]) -> String {
+    let side = |positive: bool| -> String {
+        charged
+            .iter()
+            .filter(|(_, z)| if positive { *z > 0 } else { *z < 0 })
+            .map(|(symbol, z)| match z.unsigned_abs() {
+                1 => (*symbol).to_string(),
+                n => format!("{n}{symbol}"),
+            })
+            .collect::<Vec<_>>()
+            .join(" + ")
+    };
+    format!("{} = {}", side(false), side(true))
+}
+
 /// Resolves the data lines of one label into K(T).
 pub fn resolve_thermo(
     lines: &[&DataLine],
@@ -1352,28 +1371,13 @@ impl Model {
 
     /// Electroneutrality with every charged species: negative side = positive side.
     pub fn neutrality(&self, style: Style) -> String {
-        let side = |positive: bool| -> String {
-            let terms: Vec<String> = self
-                .species
-                .iter()
-                .enumerate()
-                .filter(|(_, s)| if positive { s.charge > 0 } else { s.charge < 0 })
-                .map(|(i, s)| {
-                    let n = s.charge.unsigned_abs();
-                    let symbol = self.symbol(i, style);
-                    if n == 1 {
-                        symbol.to_string()
-                    } else {
-                        format!("{n}{symbol}")
-                    }
-                })
-                .collect();
-            terms.join(" + ")
-        };
         if self.species.iter().all(|s| s.charge == 0) {
             return "no charged species".to_string();
         }
-        format!("{} = {}", side(false), side(true))
+        let terms: Vec<(&str, i32)> = (0..self.species.len())
+            .map(|i| (self.symbol(i, style), self.species[i].charge))
+            .collect();
+        neutrality_text(&terms)
     }
 
     /// ln K of every equilibrium at `t` kelvin, or a diagnostic naming the

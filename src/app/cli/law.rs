@@ -5,9 +5,10 @@ use super::model_input::{Source, diagnostic_json, gather, print_diagnostics};
 use super::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
-use crate::model::law::{FactorKind, Law, k_of_t_text, mass_action_law, write_law_text};
+use crate::model::law::{k_of_t_text, write_law_text};
+use crate::model::laws::{LawEntry, document_laws, document_neutrality};
 use crate::model::thermo::{self, Thermo};
-use crate::model::{self, DataLine, Document};
+use crate::model::{self, Document};
 use crate::notation::Style;
 use clap::{Args, ValueEnum};
 use std::io::{self, BufWriter, Write};
@@ -51,15 +52,6 @@ pub struct LawArgs {
     pub color: ColorChoice,
 }
 
-/// A law with where it came from and its data.
-struct Entry {
-    source: String,
-    line: u32,
-    law: Law,
-    thermo: Option<Thermo>,
-    host: Option<String>,
-}
-
 pub fn run(args: &LawArgs) -> ExitCode {
     if args.files.is_empty() && args.reactions.is_empty() {
         return fail(
@@ -88,8 +80,10 @@ pub fn run(args: &LawArgs) -> ExitCode {
         let (doc, diags) = read_source(source, host.clone());
         any_error |= diags.iter().any(Diagnostic::is_error);
         let t = temperature.or(doc.temperature.map(|(t, _)| t));
-        let (found, thermo_problems) = laws_of(&doc);
-        any_error |= thermo_problems.iter().any(Diagnostic::is_error);
+        let laws = document_laws(&doc);
+        let thermo_problems = laws.problems();
+        any_error |= laws.has_errors();
+        let found: Vec<LawEntry> = laws.laws().cloned().collect();
         let mut all = diags;
         all.extend(thermo_problems);
         all.sort_by_key(|d| {
@@ -102,7 +96,7 @@ pub fn run(args: &LawArgs) -> ExitCode {
         if !all.is_empty() {
             problems.push((source.name.clone(), doc.lines.clone(), all));
         }
-        if let Some((unicode, ascii)) = neutrality(&found, &doc) {
+        if let Some((unicode, ascii)) = document_neutrality(&found, &doc) {
             neutralities.push((source.name.clone(), unicode, ascii));
         }
         for _ in &found {
@@ -145,107 +139,10 @@ fn read_source(source: &Source, host: Option<crate::host::Host>) -> (Document, V
     (doc, diags)
 }
 
-/// The laws of every reaction that passed its checks, with their data.
-fn laws_of(doc: &Document) -> (Vec<Entry>, Vec<Diagnostic>) {
-    let mut entries = Vec::new();
-    let mut problems = Vec::new();
-    for r in &doc.reactions {
-        if !r.ok {
-            problems.push(
-                Diagnostic::new(
-                    crate::base::diagnostic::Code::NoLaw,
-                    r.reaction.span.clone(),
-                    "no mass-action law is written for a reaction that does not pass its checks",
-                )
-                .with_help("fix the problems reported for this line; the law of an unbalanced reaction would be wrong")
-                .locate(r.line, doc.line_text(r.line)),
-            );
-            continue;
-        }
-        let Ok(law) = mass_action_law(&r.reaction, r.label.as_deref()) else {
-            continue;
-        };
-        let data: Vec<&DataLine> = match &r.label {
-            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
-            None => Vec::new(),
-        };
-        // A K without `at` holds at the file's temperature line only.
-        let file_temperature = doc.temperature.map(|(t, _)| t);
-        let thermo = match model::resolve_thermo(&data, file_temperature, r.line) {
-            Ok(t) => t.map(|(t, _)| t),
-            Err((line, d)) => {
-                problems.push(d.locate(line, doc.line_text(line)));
-                None
-            }
-        };
-        let host = r
-            .host
-            .and_then(|i| doc.hosts.get(i))
-            .map(|(h, _)| h.formula_text.clone());
-        entries.push(Entry {
-            source: doc.source.clone(),
-            line: r.line,
-            law,
-            thermo,
-            host,
-        });
-    }
-    (entries, problems)
-}
-
-/// Electroneutrality over every charged species of the source's laws and
-/// fixed dopants, when there are any.
-fn neutrality(entries: &[Entry], doc: &Document) -> Option<(String, String)> {
-    let mut charged: Vec<(String, String, i32)> = Vec::new();
-    for e in entries {
-        for f in &e.law.factors {
-            if f.kind.is_concentration()
-                && f.charge != 0
-                && !charged.iter().any(|c| c.0 == f.unicode)
-            {
-                charged.push((f.unicode.clone(), f.ascii.clone(), f.charge));
-            }
-        }
-    }
-    for fix in &doc.fixes {
-        if let Some(f) =
-            crate::model::law::factor_of(&crate::notation::Entity::Species(fix.subject.clone()))
-        {
-            if f.kind == FactorKind::Defect
-                && f.charge != 0
-                && !charged.iter().any(|c| c.0 == f.unicode)
-            {
-                charged.push((f.unicode, f.ascii, f.charge));
-            }
-        }
-    }
-    if !charged.iter().any(|c| c.2 > 0) || !charged.iter().any(|c| c.2 < 0) {
-        return None;
-    }
-    let side = |positive: bool, ascii: bool| -> String {
-        charged
-            .iter()
-            .filter(|c| (c.2 > 0) == positive)
-            .map(|(u, a, z)| {
-                let symbol = if ascii { a } else { u };
-                match z.unsigned_abs() {
-                    1 => symbol.clone(),
-                    n => format!("{n}{symbol}"),
-                }
-            })
-            .collect::<Vec<_>>()
-            .join(" + ")
-    };
-    Some((
-        format!("{} = {}", side(false, false), side(true, false)),
-        format!("{} = {}", side(false, true), side(true, true)),
-    ))
-}
-
 fn write_text(
     out: &mut dyn Write,
     format: LawFormat,
-    entries: &[Entry],
+    entries: &[LawEntry],
     temperatures: &[Option<f64>],
     neutralities: &[(String, String, String)],
 ) -> io::Result<()> {
@@ -283,7 +180,7 @@ fn write_text(
 
 fn write_json(
     out: &mut dyn Write,
-    entries: &[Entry],
+    entries: &[LawEntry],
     temperatures: &[Option<f64>],
     neutralities: &[(String, String, String)],
     problems: &[(String, Vec<String>, Vec<Diagnostic>)],

@@ -21,9 +21,10 @@ use crate::base::number::Q;
 use crate::generate::dope::table::{TableInput, write_report};
 use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
-use crate::model::law::{FactorKind, mass_action_law, write_law_text};
+use crate::model::law::{FactorKind, write_law_text};
+use crate::model::laws::document_laws;
 use crate::model::thermo::temperature_text;
-use crate::model::{self, DataLine, Document, Model, Overrides};
+use crate::model::{self, Document, Model, Overrides};
 use crate::notation::{Span, Style, parse_reaction, render_reaction};
 use crate::report::human::write_diagnostic;
 use crate::solve::regimes::{self, Along, Regime, Sweep};
@@ -273,71 +274,46 @@ pub(super) fn law(
         return Ok(());
     }
     let (doc, lines) = session_document(session);
-    let temperature = doc.temperature.map(|(t, _)| t);
+    let laws = document_laws(&doc);
     let mut refused = 0;
     for i in chosen {
         let line = lines.get(i).copied().unwrap_or(0);
         let place = format!("reaction {}", i + 1);
-        let Some(r) = doc.reactions.iter().find(|r| r.line == line) else {
+        let Some(r) = laws.reactions.iter().find(|r| r.line == line) else {
             continue;
         };
         let text = doc.line_text(line);
-        if !r.ok {
-            refused += 1;
-            let help = if r.host.is_none() {
-                "set the host with `/host ZrO2`: without it the sites and charges cannot be checked"
-            } else {
-                "`/check` shows the problems; the law of an unbalanced reaction would be wrong"
-            };
-            let d = Diagnostic::new(
-                Code::NoLaw,
-                r.reaction.span.clone(),
-                "no mass-action law is written for a reaction that does not pass its checks",
-            )
-            .with_help(help)
-            .locate(1, text);
-            write_diagnostic(out, session.palette, &place, text, &d)?;
-            continue;
-        }
-        let Ok(law) = mass_action_law(&r.reaction, r.label.as_deref()) else {
-            refused += 1;
-            let d = Diagnostic::new(
-                Code::Number,
-                r.reaction.span.clone(),
-                "the exponents of this law grew beyond the exact range",
-            )
-            .with_help("scale the coefficients down")
-            .locate(1, text);
-            write_diagnostic(out, session.palette, &place, text, &d)?;
-            continue;
-        };
-        let data: Vec<&DataLine> = match &r.label {
-            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
-            None => Vec::new(),
-        };
-        let thermo = match model::resolve_thermo(&data, temperature, r.line) {
-            Ok(t) => t.map(|(t, _)| t),
-            Err((at, d)) => {
-                print_session_diagnostic(
-                    session,
-                    out,
-                    &doc,
-                    &lines,
-                    &d.locate(at, doc.line_text(at)),
-                )?;
-                None
+        let entry = match &r.law {
+            Ok(entry) => entry,
+            Err(d) => {
+                refused += 1;
+                let mut d = d.clone().locate(1, text);
+                if d.code == Code::NoLaw {
+                    // The workbench's way forward: its own commands.
+                    let no_host = doc
+                        .reactions
+                        .iter()
+                        .find(|x| x.line == line)
+                        .is_some_and(|x| x.host.is_none());
+                    d.help = Some(if no_host {
+                        "set the host with `/host ZrO2`: without it the sites and charges cannot be checked"
+                    } else {
+                        "`/check` shows the problems; the law of an unbalanced reaction would be wrong"
+                    }.to_string());
+                }
+                write_diagnostic(out, session.palette, &place, text, &d)?;
+                continue;
             }
         };
-        let host = r
-            .host
-            .and_then(|h| doc.hosts.get(h))
-            .map(|(h, _)| h.formula_text.clone());
+        for d in &r.data_problems {
+            print_session_diagnostic(session, out, &doc, &lines, d)?;
+        }
         write_law_text(
             out,
-            &law,
-            thermo.as_ref(),
-            temperature,
-            host.as_deref(),
+            &entry.law,
+            entry.thermo.as_ref(),
+            laws.temperature,
+            entry.host.as_deref(),
             &place,
             Style::Unicode,
         )?;
