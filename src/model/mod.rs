@@ -9,6 +9,7 @@
 //! unit, the automatically built electroneutrality, and the exact
 //! log-linear `Network` the solvers work on.
 
+pub mod builder;
 pub mod law;
 pub mod laws;
 pub mod network;

@@ -4,26 +4,23 @@
 
 use super::model_input::{diagnostic_json, gather, print_diagnostics};
 use super::{ColorChoice, fail, host_argument};
-use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::diagnostic::Diagnostic;
 use crate::base::number::{self, Q};
 use crate::model::thermo::{self, sig, temperature_text};
 use crate::model::{self, Model, Overrides};
 use crate::notation::Style;
 use crate::report::svg::{self, Plot, SegmentLabel, Series};
 use crate::report::{Palette, csv};
-use crate::solve::equilibrium::{self, Point};
-use crate::solve::regimes::{self, Along, Regime, Sweep};
+use crate::solve::equilibrium::Point;
+use crate::solve::regimes::{self, Along as TableAlong};
+use crate::solve::scan::{
+    Along, DILUTE_LIMIT, MAX_POINTS, Mode, Scan, ScanError, ScanOptions, scan,
+};
 use clap::{Args, ValueEnum};
 use std::fmt::Write as _;
 use std::io::{self, BufWriter, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;
-
-/// The most points one run computes.
-const MAX_POINTS: usize = 1_000_000;
-
-/// Site fraction above which the dilute ideal model is flagged.
-pub const DILUTE_LIMIT: f64 = 0.01;
 
 /// Output format of `brouwer`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -78,22 +75,6 @@ pub struct BrouwerArgs {
     /// When to use colour (diagnostics).
     #[arg(long, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
     pub color: ColorChoice,
-}
-
-/// What was computed.
-enum Mode {
-    Po2 { temperature: f64 },
-    Temperature { po2: f64 },
-    FrozenPo2 { high: f64, low: f64 },
-    FrozenTemperature { high: f64, po2: f64 },
-}
-
-struct Run {
-    mode: Mode,
-    points: Vec<Point>,
-    regimes: Vec<Regime>,
-    warnings: Vec<Diagnostic>,
-    notes: Vec<String>,
 }
 
 fn temperature_range(text: &str) -> Result<(f64, f64), String> {
@@ -178,7 +159,7 @@ pub fn run(args: &BrouwerArgs) -> ExitCode {
     let palette = args.color.palette();
     let mut stderr = io::stderr();
     let doc = model::read(&source.name, &source.text, host);
-    let mut model = match Model::build(&doc, overrides) {
+    let model = match Model::build(&doc, overrides) {
         Ok(m) => m,
         Err(mut diags) => {
             if let Some((d, _)) = &source.problem {
@@ -205,7 +186,7 @@ pub fn run(args: &BrouwerArgs) -> ExitCode {
     }
     let _ = print_diagnostics(&mut stderr, palette, &source.name, &doc.lines, &model.notes);
     let table = args.format == BrouwerFormat::Table;
-    let computed = compute(args, &mut model, fixed_po2, table);
+    let computed = compute(args, &model, fixed_po2, table);
     let run = match computed {
         Ok(run) => run,
         Err(Failure::Usage(message)) => return fail(message),
@@ -286,66 +267,35 @@ impl From<Diagnostic> for Failure {
     }
 }
 
+/// The command's options as `ScanOptions`, and the scan.
 fn compute(
     args: &BrouwerArgs,
-    model: &mut Model,
+    model: &Model,
     fixed_po2: Option<f64>,
     table: bool,
-) -> Result<Run, Failure> {
-    let per_decade = f64::from(
-        args.per_decade
-            .unwrap_or(if table { 1 } else { 10 })
-            .clamp(1, 10_000),
-    );
-    let steps = args
-        .steps
-        .unwrap_or(if table { 13 } else { 101 })
-        .clamp(2, 100_000) as usize;
-    let (lo, hi) = model.po2_range;
-    let points_wanted = ((hi.log10() - lo.log10()) * per_decade).ceil().max(1.0) + 1.0;
-    if points_wanted > MAX_POINTS as f64 {
-        return Err(Failure::Usage(format!(
-            "{points_wanted:.0} pO2 points is more than {MAX_POINTS}; lower --per-decade or narrow the range"
-        )));
-    }
-    let po2_grid = |model: &Model| {
-        let (lo, hi) = model.po2_range;
-        equilibrium::log_grid(lo, hi, points_wanted as usize)
-    };
-    let mut notes = Vec::new();
-    let (mode, points, regimes) = match (&args.quench_to, &args.sweep_temperature) {
+) -> Result<Scan, Failure> {
+    let along = match (&args.quench_to, &args.sweep_temperature) {
         (Some(_), Some(_)) => {
             return Err(Failure::Usage(
                 "--quench-to and --sweep-temperature do not combine; give --quench-to a range (`300 to 900 K`) for a frozen-in temperature sweep".to_string(),
             ));
         }
-        (None, None) => {
-            let t = model.require_temperature()?;
-            let points = equilibrium::po2_sweep(model, t, &po2_grid(model))?;
-            let regimes = regimes::regimes(model, Sweep::Po2 { temperature: t }, model.po2_range)?;
-            (Mode::Po2 { temperature: t }, points, regimes)
-        }
+        (None, None) => Along::Po2,
         (None, Some(range)) => {
-            let (lo, hi) = temperature_range(range)
+            let (from, to) = temperature_range(range)
                 .map_err(|e| Failure::Usage(format!("--sweep-temperature: {e}")))?;
             let po2 = fixed_po2.ok_or_else(|| {
                 Failure::Usage(
                     "--sweep-temperature needs --po2, e.g. `--po2 '0.21 bar'`".to_string(),
                 )
             })?;
-            let temps = equilibrium::inverse_grid(lo, hi, steps);
-            let points = equilibrium::temperature_sweep(model, po2, &temps)?;
-            let regimes = regimes::regimes(model, Sweep::Temperature { po2 }, (lo, hi))?;
-            (Mode::Temperature { po2 }, points, regimes)
+            Along::Temperature { from, to, po2 }
         }
         (Some(quench), None) => {
-            let high = model.require_temperature()?;
-            notes.push(format!(
-                "frozen-in: equilibrated at {}, ionic defects then held fixed while electrons and holes re-equilibrate",
-                temperature_text(high)
-            ));
+            // The model's temperature is asked for first, as before any range.
+            model.require_temperature()?;
             if quench.contains(" to ") {
-                let (lo, hi) = temperature_range(quench)
+                let (from, to) = temperature_range(quench)
                     .map_err(|e| Failure::Usage(format!("--quench-to: {e}")))?;
                 let po2 = fixed_po2.ok_or_else(|| {
                     Failure::Usage(
@@ -353,102 +303,24 @@ fn compute(
                             .to_string(),
                     )
                 })?;
-                let temps = equilibrium::inverse_grid(lo, hi, steps);
-                let points = equilibrium::frozen_sweep(model, high, &[po2], &temps)?;
-                (Mode::FrozenTemperature { high, po2 }, points, Vec::new())
+                Along::FrozenTemperature { from, to, po2 }
             } else {
-                let low = thermo::parse_temperature(quench).map_err(|e| {
+                let quench = thermo::parse_temperature(quench).map_err(|e| {
                     Failure::Usage(format!("--quench-to: {}; {}", e.message, e.help))
                 })?;
-                let points = equilibrium::frozen_sweep(model, high, &po2_grid(model), &[low])?;
-                (Mode::FrozenPo2 { high, low }, points, Vec::new())
+                Along::FrozenPo2 { quench }
             }
         }
     };
-    let mut warnings = Vec::new();
-    let failed: Vec<&Point> = points.iter().filter(|p| !p.converged).collect();
-    if !failed.is_empty() {
-        let listed: Vec<String> = failed
-            .iter()
-            .take(5)
-            .map(|p| {
-                format!(
-                    "pO2 {} bar at {} K (residual {})",
-                    sig(p.po2, 3),
-                    sig(p.temperature, 5),
-                    sig(p.residual.max(p.total_residual), 2)
-                )
-            })
-            .collect();
-        warnings.push(
-            Diagnostic::new(
-                Code::NotConverged,
-                0..0,
-                format!(
-                    "{} of {} points did not converge: {}",
-                    failed.len(),
-                    points.len(),
-                    listed.join("; ")
-                ),
-            )
-            .with_help(
-                "these points are marked converged = false; check for extreme K values or totals",
-            ),
-        );
-    }
-    let dilute: Vec<&Point> = points
-        .iter()
-        .filter(|p| p.site_fraction > DILUTE_LIMIT)
-        .collect();
-    if let (Some(first), Some(last)) = (dilute.first(), dilute.last()) {
-        let worst = dilute.iter().map(|p| p.site_fraction).fold(0.0, f64::max);
-        let place = match (&mode, dilute.len() == points.len()) {
-            (_, true) => "at every point".to_string(),
-            (Mode::Po2 { .. } | Mode::FrozenPo2 { .. }, _) => format!(
-                "for pO2 from {} to {} bar",
-                sig(first.po2, 3),
-                sig(last.po2, 3)
-            ),
-            _ => format!(
-                "from {} to {}",
-                temperature_text(first.temperature),
-                temperature_text(last.temperature)
-            ),
-        };
-        warnings.push(
-            Diagnostic::new(
-                Code::DiluteLimit,
-                0..0,
-                format!(
-                    "defects exceed {} % of the sites {place} (largest site fraction {}): the dilute ideal model is not trustworthy there",
-                    DILUTE_LIMIT * 100.0,
-                    sig(worst, 3)
-                ),
-            )
-            .with_help("defect interactions, association and site exclusion matter at these levels; treat the numbers as a first estimate"),
-        );
-    }
-    if regimes.is_empty() && matches!(mode, Mode::Temperature { .. }) {
-        notes.push("exact regimes along temperature need dH for every equilibrium".to_string());
-    }
-    if matches!(
-        mode,
-        Mode::FrozenPo2 { .. } | Mode::FrozenTemperature { .. }
-    ) {
-        notes.push("exact regimes are not computed for frozen-in states; the numbers are the full solution".to_string());
-    }
-    if !model.reference_only.is_empty() {
-        notes.push(format!(
-            "shown for reference only (no data): {}",
-            model.reference_only.join(", ")
-        ));
-    }
-    Ok(Run {
-        mode,
-        points,
-        regimes,
-        warnings,
-        notes,
+    let options = ScanOptions::new(along)
+        .per_decade(args.per_decade.unwrap_or(if table { 1 } else { 10 }))
+        .steps(args.steps.unwrap_or(if table { 13 } else { 101 }));
+    scan(model, &options).map_err(|e| match e {
+        ScanError::Model(d) => Failure::Model(d),
+        ScanError::TooManyPoints { wanted } => Failure::Usage(format!(
+            "{wanted:.0} pO2 points is more than {MAX_POINTS}; lower --per-decade or narrow the range"
+        )),
+        other => Failure::Usage(other.to_string()),
     })
 }
 
@@ -464,7 +336,7 @@ fn unicode_slope(q: Q) -> String {
     signed_slope(q).replacen('-', "−", 1)
 }
 
-fn describe_model(model: &Model, run: &Run) -> Vec<String> {
+fn describe_model(model: &Model, run: &Scan) -> Vec<String> {
     let mut lines = Vec::new();
     let when = match run.mode {
         Mode::Po2 { temperature } => format!("at {}", temperature_text(temperature)),
@@ -498,7 +370,7 @@ fn describe_model(model: &Model, run: &Run) -> Vec<String> {
     lines
 }
 
-fn table_text(model: &Model, run: &Run) -> String {
+fn table_text(model: &Model, run: &Scan) -> String {
     let mut out = String::new();
     for line in describe_model(model, run) {
         let _ = writeln!(out, "{line}");
@@ -507,9 +379,9 @@ fn table_text(model: &Model, run: &Run) -> String {
     let pad = regimes::pad;
     if !run.regimes.is_empty() {
         let along = if matches!(run.mode, Mode::Temperature { .. }) {
-            Along::Temperature
+            TableAlong::Temperature
         } else {
-            Along::Po2
+            TableAlong::Po2
         };
         out.push_str(&regimes::regimes_table(model, &run.regimes, along));
     }
@@ -559,7 +431,7 @@ fn table_text(model: &Model, run: &Run) -> String {
     out
 }
 
-fn csv_text(model: &Model, run: &Run) -> String {
+fn csv_text(model: &Model, run: &Scan) -> String {
     let mut out = Vec::new();
     let mut header = vec!["po2_bar".to_string(), "temperature_K".to_string()];
     header.extend((0..model.species.len()).map(|s| model.symbol(s, Style::Ascii).to_string()));
@@ -580,7 +452,7 @@ fn csv_text(model: &Model, run: &Run) -> String {
     String::from_utf8_lossy(&out).into_owned()
 }
 
-fn json_text(model: &Model, run: &Run) -> String {
+fn json_text(model: &Model, run: &Scan) -> String {
     let names: Vec<String> = (0..model.species.len())
         .map(|s| model.symbol(s, Style::Unicode).to_string())
         .collect();
@@ -702,7 +574,7 @@ fn json_text(model: &Model, run: &Run) -> String {
     text
 }
 
-fn svg_text(model: &Model, run: &Run) -> String {
+fn svg_text(model: &Model, run: &Scan) -> String {
     let by_po2 = matches!(run.mode, Mode::Po2 { .. } | Mode::FrozenPo2 { .. });
     let x_of = |p: &Point| {
         if by_po2 {

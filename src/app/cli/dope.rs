@@ -15,6 +15,7 @@ use crate::generate::dope::{
 };
 use crate::host::Host;
 use crate::report::human::write_diagnostic;
+use crate::solve::scan::composition_note;
 use clap::Args;
 use serde::Serialize;
 use std::io::{self, Write};
@@ -288,24 +289,10 @@ fn write_level(
     for (k, v) in rows {
         writeln!(out, "  {}  {v}", pad(&k, w))?;
     }
-    if let Some(note) = dilute_note(c) {
+    if let Some(note) = composition_note(c) {
         writeln!(out, "note: {note}")?;
     }
     Ok(())
-}
-
-/// Said whenever a defect fraction passes 1 %: the numbers stay exact
-/// bookkeeping, but the dilute-solution picture behind activities fails.
-fn dilute_note(c: &Composition) -> Option<&'static str> {
-    let largest = c
-        .defects
-        .iter()
-        .map(|d| d.fraction)
-        .max()
-        .unwrap_or_default();
-    (largest > Q::new(1, 100)).then_some(
-        "above about 1 % defects interact and associate; these fractions are bookkeeping of the composition, not activities, and the dilute picture does not hold here",
-    )
 }
 
 fn level_rows(
@@ -529,7 +516,7 @@ fn to_json<'a>(
                     })
                     .collect(),
                 dopant_per_cm3: c.per_cm3,
-                note: dilute_note(c),
+                note: composition_note(c),
             }),
             _ => None,
         },
