@@ -6,9 +6,8 @@ use super::{ColorChoice, fail, host_argument};
 use crate::balance::report::{check_and_balance, write_outcome};
 use crate::balance::{Outcome, Status};
 use crate::base::diagnostic::Diagnostic;
-use crate::base::number;
 use crate::host::Host;
-use crate::notation::{Style, parse_reaction, render_reaction};
+use crate::notation::{Style, parse_reaction};
 use crate::report::{Palette, human::write_diagnostic};
 use clap::{Args, ValueEnum};
 use serde::Serialize;
@@ -76,27 +75,7 @@ impl NotationStyle {
     }
 }
 
-pub use crate::report::json::JsonDiagnostic;
-
-#[derive(Debug, Serialize)]
-struct JsonTerm<'a> {
-    species: &'a str,
-    side: &'static str,
-    coefficient: String,
-}
-
-#[derive(Debug, Serialize)]
-struct JsonReaction<'a> {
-    text: String,
-    terms: Vec<JsonTerm<'a>>,
-}
-
-#[derive(Debug, Serialize)]
-struct JsonReport<'a> {
-    status: &'static str,
-    reactions: Vec<JsonReaction<'a>>,
-    diagnostics: Vec<JsonDiagnostic<'a>>,
-}
+use crate::report::results::balance::balance_json;
 
 /// Writes `value` as pretty JSON and a newline to stdout.
 pub fn print_json<T: Serialize>(value: &T) -> io::Result<()> {
@@ -128,7 +107,13 @@ pub fn run(args: &BalanceArgs) -> ExitCode {
     let (outcome, diagnostics) = balance_text(&text, host.as_ref(), !args.free);
     let result = match args.format {
         OutputFormat::Human => human(args, &text, outcome.as_ref(), &diagnostics),
-        OutputFormat::Json => print_json(&to_json(args, &text, outcome.as_ref(), &diagnostics)),
+        OutputFormat::Json => print_json(&balance_json(
+            &text,
+            outcome.as_ref(),
+            &diagnostics,
+            args.style.style(),
+            args.conventional,
+        )),
     };
     match result {
         Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
@@ -186,48 +171,4 @@ fn human(
         printed = true;
     }
     out.flush()
-}
-
-fn to_json<'a>(
-    args: &BalanceArgs,
-    text: &'a str,
-    outcome: Option<&Outcome>,
-    diagnostics: &'a [Diagnostic],
-) -> JsonReport<'a> {
-    let style = args.style.style();
-    let status = outcome.map_or(Status::None, |o| o.status);
-    let reactions = outcome
-        .map(|o| o.reactions.as_slice())
-        .unwrap_or_default()
-        .iter()
-        .map(|b| {
-            let reaction = if args.conventional {
-                &b.conventional
-            } else {
-                &b.reaction
-            };
-            let terms = b
-                .terms
-                .iter()
-                .map(|t| JsonTerm {
-                    species: text.get(t.span.clone()).unwrap_or(""),
-                    side: t.side.as_str(),
-                    coefficient: number::to_plain(if args.conventional {
-                        t.conventional
-                    } else {
-                        t.coefficient
-                    }),
-                })
-                .collect();
-            JsonReaction {
-                text: render_reaction(reaction, style),
-                terms,
-            }
-        })
-        .collect();
-    JsonReport {
-        status: status.as_str(),
-        reactions,
-        diagnostics: diagnostics.iter().map(JsonDiagnostic::from).collect(),
-    }
 }

@@ -1,15 +1,15 @@
 //! `lacuna law`: the mass-action law of each reaction, with K(T) and the
 //! units of K, as Unicode, plain text, LaTeX or JSON.
 
-use super::model_input::{Source, diagnostic_json, gather, print_diagnostics};
+use super::model_input::{Source, gather, print_diagnostics};
 use super::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
-use crate::base::number;
-use crate::model::law::{k_of_t_text, write_law_text};
 use crate::model::laws::{LawEntry, document_laws, document_neutrality};
-use crate::model::thermo::{self, Thermo};
+use crate::model::thermo;
 use crate::model::{self, Document};
 use crate::notation::Style;
+use crate::report::law::write_law_text;
+use crate::report::results::law::law_report;
 use clap::{Args, ValueEnum};
 use std::io::{self, BufWriter, Write};
 use std::path::PathBuf;
@@ -185,77 +185,14 @@ fn write_json(
     neutralities: &[(String, String, String)],
     problems: &[(String, Vec<String>, Vec<Diagnostic>)],
 ) -> io::Result<()> {
-    let laws: Vec<serde_json::Value> = entries
-        .iter()
-        .zip(temperatures)
-        .map(|(e, t)| {
-            let factors: Vec<serde_json::Value> = e
-                .law
-                .factors
-                .iter()
-                .map(|f| {
-                    serde_json::json!({
-                        "species": f.species,
-                        "kind": f.kind.as_str(),
-                        "symbol": f.unicode,
-                        "exponent": number::to_plain(f.exponent),
-                    })
-                })
-                .collect();
-            let mut value = serde_json::json!({
-                "reaction": e.law.reaction_unicode,
-                "text": e.law.text(Style::Unicode),
-                "ascii": e.law.text(Style::Ascii),
-                "latex": e.law.text(Style::Latex),
-                "factors": factors,
-                "assumptions": e.law.assumptions,
-                "units": e.law.units_text(e.host.as_deref()),
-                "source": e.source,
-                "line": e.line,
-                "label": e.law.label,
-            });
-            if let (Some(thermo), Some(map)) = (&e.thermo, value.as_object_mut()) {
-                let mut k = serde_json::json!({
-                    "text": k_of_t_text(&e.law, thermo, *t, Style::Unicode),
-                });
-                if let Some(km) = k.as_object_mut() {
-                    match *thermo {
-                        Thermo::Fixed { k: value, at } => {
-                            km.insert("K".into(), value.into());
-                            km.insert("temperature_K".into(), at.into());
-                        }
-                        Thermo::Arrhenius {
-                            dh_ev, ds_ev_per_k, ..
-                        } => {
-                            km.insert("dH_eV".into(), dh_ev.into());
-                            km.insert("dS_eV_per_K".into(), ds_ev_per_k.into());
-                            if let Some(t) = t {
-                                if let Ok(ln_k) = thermo.ln_k(*t) {
-                                    km.insert("K".into(), ln_k.exp().into());
-                                    km.insert("temperature_K".into(), (*t).into());
-                                }
-                            }
-                        }
-                    }
-                }
-                map.insert("k".into(), k);
-            }
-            value
-        })
-        .collect();
-    let neutrality: Vec<serde_json::Value> = neutralities
-        .iter()
-        .map(|(s, u, _)| serde_json::json!({"source": s, "text": u}))
-        .collect();
-    let diagnostics: Vec<serde_json::Value> = problems
-        .iter()
-        .flat_map(|(name, _, diags)| diags.iter().map(move |d| diagnostic_json(d, name)))
-        .collect();
-    let report = serde_json::json!({
-        "laws": laws,
-        "neutrality": neutrality,
-        "diagnostics": diagnostics,
-    });
+    let report = law_report(
+        entries,
+        temperatures,
+        neutralities,
+        problems
+            .iter()
+            .map(|(name, _, diags)| (name.as_str(), diags.as_slice())),
+    );
     serde_json::to_writer_pretty(&mut *out, &report).map_err(io::Error::other)?;
     writeln!(out)
 }

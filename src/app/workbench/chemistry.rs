@@ -21,13 +21,15 @@ use crate::base::number::Q;
 use crate::generate::dope::table::{TableInput, write_report};
 use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
-use crate::model::law::{FactorKind, write_law_text};
+use crate::model::law::FactorKind;
 use crate::model::laws::document_laws;
 use crate::model::thermo::temperature_text;
 use crate::model::{self, Document, Model, Overrides};
 use crate::notation::{Span, Style, parse_reaction, render_reaction};
 use crate::report::human::write_diagnostic;
-use crate::solve::regimes::{self, Along, Regime, Sweep};
+use crate::report::law::write_law_text;
+use crate::report::regimes::{Along, regimes_table};
+use crate::solve::regimes::{self, Regime, Sweep};
 use std::io::Write;
 
 /// A diagnostic of an argument's own text (located on line 1 of it) moved
@@ -389,11 +391,7 @@ pub(super) fn brouwer(
         Ok(t) => {
             let regimes = regimes::regimes(&model, Sweep::Po2 { temperature: t }, model.po2_range)
                 .map_err(located)?;
-            write!(
-                out,
-                "{}",
-                regimes::regimes_table(&model, &regimes, Along::Po2)
-            )?;
+            write!(out, "{}", regimes_table(&model, &regimes, Along::Po2))?;
         }
         Err(why) => {
             let regimes: Vec<Regime> = regimes::all_regimes(&model)
@@ -415,11 +413,7 @@ pub(super) fn brouwer(
                 session.problems += 1;
                 return Ok(());
             }
-            write!(
-                out,
-                "{}",
-                regimes::regimes_table(&model, &regimes, Along::Unordered)
-            )?;
+            write!(out, "{}", regimes_table(&model, &regimes, Along::Unordered))?;
             writeln!(
                 out,
                 "note: {why}: these are the exact slopes of every regime the reactions allow; K values are needed to order the regimes along pO₂ and to tell which of them occur"
