@@ -9,10 +9,12 @@
 
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::check::check_reaction;
+use crate::file::reader::{Line, classify};
 use crate::host::Host;
 use crate::model::law::factor_of;
 use crate::model::{
     Basis, DataLine, Datum, Document, FixLine, Model, Overrides, PressureLine, ReactionLine,
+    read_model_line,
 };
 use crate::notation::{Compound, Entity, Phase, Reaction, Span, parse_formula, parse_reaction};
 use crate::notation::{parse_species_text, render_reaction};
@@ -288,6 +290,51 @@ impl ModelBuilder {
                 this
             }
         }
+    }
+
+    /// Leaves lines blank so that the next item is on line `n` (1-based),
+    /// for a caller that numbers its items as they appear elsewhere (the
+    /// workbench numbers them as `/save` writes the session).
+    pub fn skip_to_line(mut self, n: u32) -> ModelBuilder {
+        while self.next_line() < n {
+            self.line(String::new());
+        }
+        self
+    }
+
+    /// One model line as a reaction file writes it (`K red = 1e-20`,
+    /// `dH red = 4.5 eV`, `fix Y_Zr' = 8 mol% Y2O3`, `temperature 1273 K`,
+    /// `po2 1e-30 to 1e5 bar`, `pressure H2O = 0.03 bar`), read by the
+    /// model reader; a line that is not a model line is a located error.
+    pub fn model_line(mut self, text: &str) -> ModelBuilder {
+        let number = self.line(text.to_string());
+        match classify(text) {
+            Line::Model { keyword, rest } => {
+                read_model_line(&mut self.doc, number, text, &text[keyword], rest);
+            }
+            _ => self.problem(
+                number,
+                Diagnostic::new(Code::ModelSyntax, 0..text.len(), "not a model line").with_help(
+                    "model lines start with K, dH, dS, fix, temperature, po2 or pressure",
+                ),
+            ),
+        }
+        self
+    }
+
+    /// Drops the data lines (`K`, `dH`, `dS`) of these reaction labels, and
+    /// their problems: for a model of some of the reactions of a larger set.
+    pub fn without_data_of(mut self, labels: &[String]) -> ModelBuilder {
+        let dropped: Vec<u32> = self
+            .doc
+            .data
+            .iter()
+            .filter(|d| labels.contains(&d.label))
+            .map(|d| d.line)
+            .collect();
+        self.doc.data.retain(|d| !labels.contains(&d.label));
+        self.doc.diagnostics.retain(|d| !dropped.contains(&d.line));
+        self
     }
 
     /// The document assembled so far, as the file reader would give it.

@@ -241,7 +241,13 @@ fn label_and_value<'a>(
     Ok((label, value))
 }
 
-fn read_model_line(doc: &mut Document, number: u32, line: &str, keyword: &str, rest: Span) {
+pub(crate) fn read_model_line(
+    doc: &mut Document,
+    number: u32,
+    line: &str,
+    keyword: &str,
+    rest: Span,
+) {
     let rest_text = &line[rest.clone()];
     let result = match keyword {
         "K" => read_k(line, rest_text).map(|d| doc.data.push(with_line(d, number))),

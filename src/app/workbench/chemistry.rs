@@ -6,8 +6,10 @@
 //! session reaction (`crate::balance`) and offers a unique answer for
 //! `/take`; `/dope OXIDE [SITE]` ranks the incorporation mechanisms in the
 //! session's host (`crate::generate::dope`); `/law [WHICH...]` writes mass-action laws
-//! (`crate::model::law`); `/brouwer [WHICH...]` reads the session as a model file
-//! (`crate::model`, as `/save` would write it) and prints its exact regimes
+//! (`crate::model::laws`, the path `lacuna law` takes); `/brouwer [WHICH...]`
+//! builds a model of the chosen reactions and the kept model lines
+//! (`crate::model::builder`; nothing is written out and read back) and
+//! prints its exact regimes
 //! (`crate::solve::regimes`), ordered along pO2 when K values and a temperature
 //! allow it, else every regime with the plain statement that K values are
 //! needed to order them.
@@ -18,13 +20,15 @@ use crate::balance::Status;
 use crate::balance::report::{check_and_balance, write_outcome};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::Q;
+use crate::file::reader::{Line as ReaderLine, classify};
 use crate::generate::dope::table::{TableInput, write_report};
 use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
+use crate::model::builder::ModelBuilder;
 use crate::model::law::FactorKind;
 use crate::model::laws::document_laws;
 use crate::model::thermo::temperature_text;
-use crate::model::{self, Document, Model, Overrides};
+use crate::model::{self, Document, Overrides};
 use crate::notation::{Span, Style, parse_reaction, render_reaction};
 use crate::report::human::write_diagnostic;
 use crate::report::law::write_law_text;
@@ -340,11 +344,10 @@ pub(super) fn brouwer(
     }
     let chosen = session.select(args, &args.words)?;
     let host = one_host(session, args, &chosen)?;
-    let (mut doc, lines) = session_document(session);
-    let unreadable = keep_only(&mut doc, &lines, &chosen);
-    doc.hosts = vec![(host.clone(), 0)];
-    let overrides = Overrides::for_slopes(&doc);
-    let model = match Model::build(&doc, overrides) {
+    let (builder, lines, unreadable) = session_model(session, &chosen, host.clone());
+    let overrides = Overrides::for_slopes(builder.document());
+    let doc = builder.document().clone();
+    let model = match builder.overrides(overrides).build() {
         Ok(m) => m,
         Err(diagnostics) => {
             for d in &diagnostics {
@@ -548,49 +551,54 @@ fn same_host(session: &Session, chosen: &[usize], host: &Host) -> String {
         .join(" ")
 }
 
-/// Keeps the chosen entries' reactions in the document, with their data
-/// lines and the lines that are not reactions; the other reactions, their
-/// data and their problems are dropped. Lines kept from a loaded file
-/// because they did not parse are no reactions of the session: they are
-/// dropped too, and their number returned so that it can be said.
-fn keep_only(doc: &mut Document, lines: &[u32], chosen: &[usize]) -> usize {
-    let unreadable = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
-        .filter(|n| {
-            !lines.contains(n)
-                && matches!(
-                    crate::file::reader::classify(doc.line_text(*n)),
-                    crate::file::reader::Line::Reaction { .. }
-                )
-        })
-        .count();
-    let kept: Vec<u32> = chosen
-        .iter()
-        .filter_map(|&i| lines.get(i).copied())
-        .collect();
-    let is_other_reaction = |n: u32| {
-        !kept.contains(&n)
-            && matches!(
-                crate::file::reader::classify(doc.line_text(n)),
-                crate::file::reader::Line::Reaction { .. }
-            )
-    };
-    let dropped_labels: Vec<String> = doc
-        .reactions
-        .iter()
-        .filter(|r| !kept.contains(&r.line))
-        .filter_map(|r| r.label.clone())
-        .collect();
-    let mut dropped_lines: Vec<u32> = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
-        .filter(|&n| is_other_reaction(n))
-        .collect();
-    dropped_lines.extend(
-        doc.data
-            .iter()
-            .filter(|d| dropped_labels.contains(&d.label))
-            .map(|d| d.line),
-    );
-    doc.reactions.retain(|r| kept.contains(&r.line));
-    doc.data.retain(|d| !dropped_labels.contains(&d.label));
-    doc.diagnostics.retain(|d| !dropped_lines.contains(&d.line));
-    unreadable
+/// The chosen reactions of the session, with the model lines kept from
+/// loaded files, as a model builder: the reactions go in as they are held,
+/// nothing is written out and read back. Items are numbered as `/save`
+/// would write the session, so that a diagnostic names the line the saved
+/// file would have. Also returns the line of each entry and the number of
+/// lines of loaded files left out because they did not read as reactions
+/// (they are no reactions of the session). The data lines of reactions not
+/// chosen are left out with them.
+fn session_model(
+    session: &Session,
+    chosen: &[usize],
+    host: Host,
+) -> (ModelBuilder, Vec<u32>, usize) {
+    // The numbering only: the text itself is not read.
+    let (_, lines) = file_text_with_lines(session);
+    let mut builder = ModelBuilder::new(host).source("session");
+    let mut unreadable = 0;
+    let mut dropped_labels = Vec::new();
+    let take =
+        |builder: ModelBuilder, at: u32, text: &str, unreadable: &mut usize| match classify(text) {
+            ReaderLine::Model { .. } => builder.skip_to_line(at).model_line(text),
+            ReaderLine::Reaction { .. } => {
+                *unreadable += 1;
+                builder
+            }
+            _ => builder,
+        };
+    let mut block = 1u32;
+    for (i, entry) in session.entries.iter().enumerate() {
+        for (j, text) in entry.preamble.iter().enumerate() {
+            let at = block.saturating_add(u32::try_from(j).unwrap_or(u32::MAX));
+            builder = take(builder, at, text, &mut unreadable);
+        }
+        let at = lines.get(i).copied().unwrap_or(0);
+        if chosen.contains(&i) {
+            builder = builder.skip_to_line(at).parsed_reaction(
+                entry.label.as_deref(),
+                entry.reaction.clone(),
+                &entry.file_line(),
+            );
+        } else if let Some(label) = &entry.label {
+            dropped_labels.push(label.clone());
+        }
+        block = at.saturating_add(1);
+    }
+    for (j, text) in session.trailer.iter().enumerate() {
+        let at = block.saturating_add(u32::try_from(j).unwrap_or(u32::MAX));
+        builder = take(builder, at, text, &mut unreadable);
+    }
+    (builder.without_data_of(&dropped_labels), lines, unreadable)
 }
