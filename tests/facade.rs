@@ -95,6 +95,12 @@ fn a_model_built_in_code_solves_as_the_same_model_read_from_text() {
         })
         .steps(7),
         ScanOptions::new(Along::FrozenPo2 { quench: 600.0 }).per_decade(1),
+        ScanOptions::new(Along::Dopant {
+            total: 0,
+            from: 1e-5,
+            to: 1e-2,
+            po2: 1e-3,
+        }),
     ] {
         let (sa, sb) = (
             scan(&a, &options).expect("scan"),
@@ -104,6 +110,7 @@ fn a_model_built_in_code_solves_as_the_same_model_read_from_text() {
         assert_eq!(slopes(&a, &sa), slopes(&b, &sb), "{options:?}");
         assert_eq!(sa.notes, sb.notes);
         assert_eq!(sa.warnings, sb.warnings);
+        assert_eq!(sa.dopant, sb.dopant);
     }
 }
 
@@ -154,4 +161,76 @@ fn builder_problems_are_located_on_the_items_lines() {
         located.to_string().starts_with("error[B302] at line 2"),
         "{located}"
     );
+}
+
+#[test]
+fn a_dopant_scan_follows_the_extrinsic_power_laws() {
+    // source: common practice (acceptor-doped oxide in the extrinsic
+    // regime; Smyth, The Defect Chemistry of Metal Oxides, 2000, from
+    // memory): 2[V_O••] = [A′] fixes [V_O••] ∝ [A′]; K_red = [V_O••] n²
+    // pO2^½ then gives n ∝ [A′]^(−1/2), and n·p = K_i gives p ∝ [A′]^(+1/2).
+    let model = built();
+    let options = ScanOptions::new(Along::Dopant {
+        total: 0,
+        from: 5e-4,
+        to: 5e-3,
+        po2: 1e-10,
+    })
+    .per_decade(4);
+    let result = scan(&model, &options).expect("scan");
+    assert!(result.converged());
+    assert_eq!(result.dopant.len(), result.points.len());
+    assert_eq!(result.points.len(), 5);
+    // Here n and p stay below 0.5 % of [Y_Zr′] and the defects below 1 % of
+    // the sites: the limiting slopes hold to about that.
+    let slope = |name: &str| {
+        let s = model
+            .species
+            .iter()
+            .position(|x| x.unicode == name)
+            .expect(name);
+        let (a, b) = (&result.points[0], result.points.last().expect("points"));
+        let (xa, xb) = (result.dopant[0], *result.dopant.last().expect("amounts"));
+        (b.ln_c[s] - a.ln_c[s]) / (xb.ln() - xa.ln())
+    };
+    assert!(
+        (slope("[V_O••]") - 1.0).abs() < 1e-2,
+        "{}",
+        slope("[V_O••]")
+    );
+    assert!((slope("n") + 0.5).abs() < 1e-2, "{}", slope("n"));
+    assert!((slope("p") - 0.5).abs() < 1e-2, "{}", slope("p"));
+    assert!(result.warnings.is_empty(), "{:?}", result.warnings);
+    // Beyond 1 % of the sites the dilute model is flagged, with where.
+    let heavy = scan(
+        &model,
+        &ScanOptions::new(Along::Dopant {
+            total: 0,
+            from: 1e-3,
+            to: 0.1,
+            po2: 1e-5,
+        }),
+    )
+    .expect("scan");
+    let warning = heavy
+        .warnings
+        .iter()
+        .find(|w| w.code.to_string() == "M713")
+        .expect("a dilute-limit warning");
+    assert!(
+        warning.message.contains("for totals from"),
+        "{}",
+        warning.message
+    );
+    // A total the model does not have is refused, not guessed.
+    let none = scan(
+        &model,
+        &ScanOptions::new(Along::Dopant {
+            total: 3,
+            from: 1e-4,
+            to: 1e-2,
+            po2: 1e-5,
+        }),
+    );
+    assert!(none.is_err());
 }

@@ -47,6 +47,7 @@ pub struct ReactionLine {
 
 /// A `K`, `dH` or `dS` line.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub enum Datum {
     /// K, and the temperature it holds at (`None`: the model temperature).
     K {
@@ -69,6 +70,7 @@ pub struct DataLine {
 
 /// How a fixed amount is expressed.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub enum Basis {
     /// Fraction of the sites of the subject's sublattice.
     SiteFraction,
@@ -532,6 +534,7 @@ fn read_fix(line: &str, rest: &str) -> Result<FixLine, Diagnostic> {
 
 /// A species whose concentration the model solves for.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct ModelSpecies {
     pub key: String,
     pub kind: FactorKind,
@@ -552,6 +555,7 @@ pub struct ModelSpecies {
 
 /// An equilibrium with data.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct Equilibrium {
     pub label: String,
     pub law: Law,
@@ -568,6 +572,7 @@ pub struct Equilibrium {
 
 /// A gas in the model: O2 is swept, the others have fixed pressures.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Gas {
     pub key: String,
     pub ascii: String,
@@ -579,6 +584,7 @@ pub struct Gas {
 
 /// A fixed total (a dopant level).
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Total {
     pub subject_unicode: String,
     pub subject_ascii: String,
@@ -594,6 +600,7 @@ pub struct Total {
 
 /// A model ready to solve.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct Model {
     pub source: String,
     pub host: Host,
@@ -615,6 +622,7 @@ pub struct Model {
 
 /// Settings from the command line that take precedence over the file.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[non_exhaustive]
 pub struct Overrides {
     pub temperature: Option<f64>,
     pub po2_range: Option<(f64, f64)>,

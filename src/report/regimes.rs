@@ -12,6 +12,7 @@ use crate::solve::regimes::Regime;
 
 /// What a table of regimes runs along, which decides its columns.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Along {
     /// Ordered along pO2: `pO₂ from`, `pO₂ to`.
     Po2,

@@ -67,6 +67,13 @@ pub fn describe_model(model: &Model, run: &Scan) -> Vec<String> {
             temperature_text(high),
             sig(po2, 4)
         ),
+        Mode::Dopant {
+            temperature, po2, ..
+        } => format!(
+            "at {} and pO₂ = {} bar",
+            temperature_text(temperature),
+            sig(po2, 4)
+        ),
     };
     lines.push(format!(
         "model       {}: host {} {when}",
@@ -104,12 +111,15 @@ pub fn table_text(model: &Model, run: &Scan) -> String {
         out.push_str(&regimes::regimes_table(model, &run.regimes, along));
     }
     let what = match run.mode {
-        Mode::Po2 { .. } | Mode::Temperature { .. } => "Full solution, every term kept",
+        Mode::Po2 { .. } | Mode::Temperature { .. } | Mode::Dopant { .. } => {
+            "Full solution, every term kept"
+        }
         _ => "Frozen-in solution",
     };
     let _ = writeln!(out, "\n{what} (concentrations per formula unit):");
     let first = match run.mode {
         Mode::Po2 { .. } | Mode::FrozenPo2 { .. } => "pO₂/bar",
+        Mode::Dopant { .. } => "total/f.u.",
         _ => "T/K",
     };
     let mut header = pad(first, 11);
@@ -119,9 +129,10 @@ pub fn table_text(model: &Model, run: &Scan) -> String {
     header.push_str(&pad("site frac", 11));
     header.push_str("ok");
     let _ = writeln!(out, "{header}");
-    for p in &run.points {
+    for (i, p) in run.points.iter().enumerate() {
         let x = match run.mode {
             Mode::Po2 { .. } | Mode::FrozenPo2 { .. } => sig(p.po2, 3),
+            Mode::Dopant { .. } => sig(run.dopant.get(i).copied().unwrap_or(f64::NAN), 3),
             _ => sig(p.temperature, 5),
         };
         let mut row = pad(&x, 11);
@@ -152,7 +163,12 @@ pub fn table_text(model: &Model, run: &Scan) -> String {
 /// `lacuna brouwer --format csv`: one row per point (RFC 4180).
 pub fn csv_text(model: &Model, run: &Scan) -> String {
     let mut out = Vec::new();
-    let mut header = vec!["po2_bar".to_string(), "temperature_K".to_string()];
+    let along_dopant = matches!(run.mode, Mode::Dopant { .. });
+    let mut header = Vec::new();
+    if along_dopant {
+        header.push("dopant_per_formula_unit".to_string());
+    }
+    header.extend(["po2_bar".to_string(), "temperature_K".to_string()]);
     header.extend((0..model.species.len()).map(|s| model.symbol(s, Style::Ascii).to_string()));
     header.extend([
         "defect_site_fraction".to_string(),
@@ -160,8 +176,12 @@ pub fn csv_text(model: &Model, run: &Scan) -> String {
         "residual".to_string(),
     ]);
     let _ = csv::write_row(&mut out, &header);
-    for p in &run.points {
-        let mut row = vec![csv::number(p.po2), csv::number(p.temperature)];
+    for (i, p) in run.points.iter().enumerate() {
+        let mut row = Vec::new();
+        if along_dopant {
+            row.push(csv::number(run.dopant.get(i).copied().unwrap_or(f64::NAN)));
+        }
+        row.extend([csv::number(p.po2), csv::number(p.temperature)]);
         row.extend((0..model.species.len()).map(|s| csv::number(p.concentration(s))));
         row.push(csv::number(p.site_fraction));
         row.push(p.converged.to_string());
@@ -176,8 +196,11 @@ pub fn csv_text(model: &Model, run: &Scan) -> String {
 /// shaded.
 pub fn svg_text(model: &Model, run: &Scan) -> String {
     let by_po2 = matches!(run.mode, Mode::Po2 { .. } | Mode::FrozenPo2 { .. });
-    let x_of = |p: &Point| {
-        if by_po2 {
+    let along_dopant = matches!(run.mode, Mode::Dopant { .. });
+    let x_of = |i: usize, p: &Point| {
+        if along_dopant {
+            run.dopant.get(i).map_or(f64::NAN, |a| a.log10())
+        } else if by_po2 {
             p.po2.log10()
         } else {
             1000.0 / p.temperature
@@ -189,8 +212,9 @@ pub fn svg_text(model: &Model, run: &Scan) -> String {
             points: run
                 .points
                 .iter()
-                .filter(|p| p.converged)
-                .map(|p| (x_of(p), p.ln_c[s] / std::f64::consts::LN_10))
+                .enumerate()
+                .filter(|(_, p)| p.converged)
+                .map(|(i, p)| (x_of(i, p), p.ln_c[s] / std::f64::consts::LN_10))
                 .collect(),
         })
         .collect();
@@ -230,8 +254,8 @@ pub fn svg_text(model: &Model, run: &Scan) -> String {
     let mut shaded = Vec::new();
     let mut start: Option<f64> = None;
     let mut previous = None;
-    for p in &run.points {
-        let x = x_of(p);
+    for (i, p) in run.points.iter().enumerate() {
+        let x = x_of(i, p);
         let over = p.site_fraction > DILUTE_LIMIT;
         match (over, start) {
             (true, None) => start = Some(x),
@@ -281,6 +305,25 @@ pub fn svg_text(model: &Model, run: &Scan) -> String {
             ),
             "1000 K / T".to_string(),
         ),
+        Mode::Dopant {
+            temperature,
+            po2,
+            total,
+        } => {
+            let subject = model
+                .totals
+                .get(total)
+                .map_or("?", |t| t.subject_unicode.as_str());
+            (
+                format!(
+                    "Defect concentrations in {} against total {subject} at {}, pO₂ = {} bar",
+                    model.host.formula_text,
+                    temperature_text(temperature),
+                    sig(po2, 3)
+                ),
+                format!("log₁₀(total {subject} per formula unit)"),
+            )
+        }
     };
     footnotes.insert(
         0,

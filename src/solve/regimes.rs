@@ -23,6 +23,7 @@ use std::collections::BTreeMap;
 
 /// Which terms dominate in a regime.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Dominance {
     /// Species indices; `None` when the model has no charged species.
     pub positive: Option<usize>,
@@ -33,6 +34,7 @@ pub struct Dominance {
 
 /// Every species as an exact power law inside one regime.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct PowerLaws {
     /// `k[s][r]` = d ln c_s / d ln K_r
     pub k: Vec<Vec<Q>>,
@@ -46,6 +48,7 @@ pub struct PowerLaws {
 
 /// One regime with the range where it holds.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Regime {
     pub dominance: Dominance,
     pub laws: PowerLaws,
@@ -281,6 +284,7 @@ struct Affine {
 
 /// Which variable a sweep runs over.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub enum Sweep {
     /// ln pO2 at a temperature (kelvin).
     Po2 { temperature: f64 },

@@ -37,6 +37,15 @@ pub enum Along {
     /// Equilibrate at the model temperature and `po2` bar, freeze, and
     /// re-equilibrate electrons and holes from `from` to `to` kelvin.
     FrozenTemperature { from: f64, to: f64, po2: f64 },
+    /// The amount of fixed total `total` (an index into `Model::totals`)
+    /// from `from` to `to` per formula unit, at the model temperature and
+    /// `po2` bar; `per_decade` points per decade of the amount.
+    Dopant {
+        total: usize,
+        from: f64,
+        to: f64,
+        po2: f64,
+    },
 }
 
 /// How to scan.
@@ -83,10 +92,26 @@ impl ScanOptions {
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[non_exhaustive]
 pub enum Mode {
-    Po2 { temperature: f64 },
-    Temperature { po2: f64 },
-    FrozenPo2 { high: f64, low: f64 },
-    FrozenTemperature { high: f64, po2: f64 },
+    Po2 {
+        temperature: f64,
+    },
+    Temperature {
+        po2: f64,
+    },
+    FrozenPo2 {
+        high: f64,
+        low: f64,
+    },
+    FrozenTemperature {
+        high: f64,
+        po2: f64,
+    },
+    /// Along the amount of fixed total `total`.
+    Dopant {
+        temperature: f64,
+        po2: f64,
+        total: usize,
+    },
 }
 
 impl Mode {
@@ -117,6 +142,9 @@ pub struct Scan {
     pub warnings: Vec<Diagnostic>,
     /// Plain statements about what the numbers are.
     pub notes: Vec<String>,
+    /// Along a dopant: the amount (per formula unit) of each point; else
+    /// empty.
+    pub dopant: Vec<f64>,
 }
 
 impl Scan {
@@ -132,8 +160,11 @@ impl Scan {
 pub enum ScanError {
     /// More points than `MAX_POINTS` were asked for.
     TooManyPoints { wanted: f64 },
-    /// A temperature range that does not run from low to high.
+    /// A range that does not run from low to high (or, for an amount, does
+    /// not start above zero).
     EmptyRange,
+    /// A dopant scan names a fixed total the model does not have.
+    NoSuchTotal { index: usize, totals: usize },
     /// The model cannot be solved as asked (located in the model's text
     /// where possible).
     Model(Diagnostic),
@@ -147,6 +178,12 @@ impl fmt::Display for ScanError {
                 "{wanted:.0} pO2 points is more than {MAX_POINTS}; lower the points per decade or narrow the range"
             ),
             ScanError::EmptyRange => write!(f, "the range must run from low to high"),
+            ScanError::NoSuchTotal { index, totals } => write!(
+                f,
+                "the model has {totals} fixed total{}, so there is no total number {}",
+                if *totals == 1 { "" } else { "s" },
+                index + 1
+            ),
             ScanError::Model(d) => write!(f, "{d}"),
         }
     }
@@ -193,6 +230,7 @@ pub fn scan(model: &Model, options: &ScanOptions) -> Result<Scan, ScanError> {
     }
     let po2_grid = || equilibrium::log_grid(lo, hi, points_wanted as usize);
     let mut notes = Vec::new();
+    let mut dopant = Vec::new();
     let (mode, points, regimes) = match options.along {
         Along::Po2 => {
             let t = model.require_temperature()?;
@@ -225,10 +263,50 @@ pub fn scan(model: &Model, options: &ScanOptions) -> Result<Scan, ScanError> {
             let points = equilibrium::frozen_sweep(model, high, &[po2], &temps)?;
             (Mode::FrozenTemperature { high, po2 }, points, Vec::new())
         }
+        Along::Dopant {
+            total,
+            from,
+            to,
+            po2,
+        } => {
+            if total >= model.totals.len() {
+                return Err(ScanError::NoSuchTotal {
+                    index: total,
+                    totals: model.totals.len(),
+                });
+            }
+            if !(from > 0.0 && from < to) {
+                return Err(ScanError::EmptyRange);
+            }
+            let t = model.require_temperature()?;
+            let wanted = ((to.log10() - from.log10()) * per_decade).ceil().max(1.0) + 1.0;
+            if wanted > MAX_POINTS as f64 {
+                return Err(ScanError::TooManyPoints { wanted });
+            }
+            dopant = equilibrium::log_grid(from, to, wanted as usize);
+            let mut at = model.clone();
+            let mut points = Vec::with_capacity(dopant.len());
+            for &amount in &dopant {
+                at.totals[total].amount = amount;
+                points.extend(equilibrium::po2_sweep(&at, t, &[po2])?);
+            }
+            notes.push(
+                "exact regimes are not computed along a dopant amount; the dopant slopes of the pO2 regimes give d log[X] / d log(total)".to_string(),
+            );
+            (
+                Mode::Dopant {
+                    temperature: t,
+                    po2,
+                    total,
+                },
+                points,
+                Vec::new(),
+            )
+        }
     };
     let mut warnings = Vec::new();
     warnings.extend(convergence_warning(&points));
-    warnings.extend(dilute_warning(&points, mode));
+    warnings.extend(dilute_warning(&points, mode, &dopant));
     if regimes.is_empty() && matches!(mode, Mode::Temperature { .. }) {
         notes.push("exact regimes along temperature need dH for every equilibrium".to_string());
     }
@@ -247,6 +325,7 @@ pub fn scan(model: &Model, options: &ScanOptions) -> Result<Scan, ScanError> {
         regimes,
         warnings,
         notes,
+        dopant,
     })
 }
 
@@ -298,13 +377,24 @@ pub fn beyond_dilute_limit(point: &Point) -> bool {
 }
 
 /// The warning for points whose defects pass the dilute limit: where, and
-/// the largest site fraction.
-pub fn dilute_warning(points: &[Point], mode: Mode) -> Option<Diagnostic> {
-    let dilute: Vec<&Point> = points.iter().filter(|p| beyond_dilute_limit(p)).collect();
+/// the largest site fraction. `dopant`: the amount of each point along a
+/// dopant, else empty.
+pub fn dilute_warning(points: &[Point], mode: Mode, dopant: &[f64]) -> Option<Diagnostic> {
+    let beyond: Vec<usize> = (0..points.len())
+        .filter(|&i| beyond_dilute_limit(&points[i]))
+        .collect();
+    let dilute: Vec<&Point> = beyond.iter().map(|&i| &points[i]).collect();
     let (first, last) = (dilute.first()?, dilute.last()?);
     let worst = dilute.iter().map(|p| p.site_fraction).fold(0.0, f64::max);
     let place = if dilute.len() == points.len() {
         "at every point".to_string()
+    } else if let Mode::Dopant { .. } = mode {
+        let amount = |i: Option<&usize>| i.and_then(|&i| dopant.get(i)).copied();
+        format!(
+            "for totals from {} to {} per formula unit",
+            sig(amount(beyond.first()).unwrap_or(f64::NAN), 3),
+            sig(amount(beyond.last()).unwrap_or(f64::NAN), 3)
+        )
     } else if mode.by_po2() {
         format!(
             "for pO2 from {} to {} bar",

@@ -15,7 +15,7 @@ pub struct ScanReport<'a> {
     pub notes: &'a [String],
     pub points: Vec<PointJson>,
     pub regimes: Vec<RegimeJson>,
-    pub sweep: SweepJson,
+    pub sweep: SweepJson<'a>,
     pub warnings: Vec<SourcedDiagnostic<'a>>,
 }
 
@@ -53,13 +53,16 @@ pub struct TotalJson<'a> {
 }
 
 #[derive(Debug, Serialize)]
-pub struct SweepJson {
+pub struct SweepJson<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub frozen_from: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub po2: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub temperature: Option<f64>,
+    /// Along a dopant: the fixed total varied.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub total: Option<&'a str>,
     pub variable: &'static str,
 }
 
@@ -86,6 +89,9 @@ pub struct PointJson {
     pub converged: bool,
     pub defect_site_fraction: f64,
     pub dilute: bool,
+    /// Along a dopant: the amount of the total, per formula unit.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dopant: Option<f64>,
     pub po2: f64,
     pub residual: f64,
     pub temperature: f64,
@@ -108,6 +114,7 @@ pub fn scan_report<'a>(model: &'a Model, scan: &'a Scan) -> ScanReport<'a> {
                 frozen_from: None,
                 po2: None,
                 temperature: Some(temperature),
+                total: None,
                 variable: "po2",
             },
         ),
@@ -117,6 +124,7 @@ pub fn scan_report<'a>(model: &'a Model, scan: &'a Scan) -> ScanReport<'a> {
                 frozen_from: None,
                 po2: Some(po2),
                 temperature: None,
+                total: None,
                 variable: "temperature",
             },
         ),
@@ -126,7 +134,22 @@ pub fn scan_report<'a>(model: &'a Model, scan: &'a Scan) -> ScanReport<'a> {
                 frozen_from: Some(high),
                 po2: None,
                 temperature: Some(low),
+                total: None,
                 variable: "po2",
+            },
+        ),
+        Mode::Dopant {
+            temperature,
+            po2,
+            total,
+        } => (
+            Some(temperature),
+            SweepJson {
+                frozen_from: None,
+                po2: Some(po2),
+                temperature: Some(temperature),
+                total: model.totals.get(total).map(|t| t.subject_unicode.as_str()),
+                variable: "dopant",
             },
         ),
         Mode::FrozenTemperature { high, po2 } => (
@@ -135,6 +158,7 @@ pub fn scan_report<'a>(model: &'a Model, scan: &'a Scan) -> ScanReport<'a> {
                 frozen_from: Some(high),
                 po2: Some(po2),
                 temperature: None,
+                total: None,
                 variable: "temperature",
             },
         ),
@@ -176,13 +200,15 @@ pub fn scan_report<'a>(model: &'a Model, scan: &'a Scan) -> ScanReport<'a> {
     let points = scan
         .points
         .iter()
-        .map(|p| PointJson {
+        .enumerate()
+        .map(|(i, p)| PointJson {
             concentrations: (0..model.species.len())
                 .map(|s| (names[s].clone(), p.concentration(s)))
                 .collect(),
             converged: p.converged,
             defect_site_fraction: p.site_fraction,
             dilute: p.site_fraction <= DILUTE_LIMIT,
+            dopant: scan.dopant.get(i).copied(),
             po2: p.po2,
             residual: p.residual.max(p.total_residual),
             temperature: p.temperature,
