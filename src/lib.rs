@@ -10,14 +10,14 @@
 //! |---|---|---|
 //! | check reactions in text or a file | [`check_text`], [`check_file`] | [`Checked`] |
 //! | read one reaction | [`parse_reaction`] | [`notation::Reaction`] |
-//! | balance a reaction | [`balance`] | [`balance::Outcome`] |
+//! | balance a reaction | [`balance()`] | [`balance::Outcome`] |
 //! | incorporate a dopant | [`dope`] | [`generate::dope::Report`] |
 //! | the intrinsic reactions of a host | [`native`] | [`generate::native::Catalogue`] |
 //! | mass-action laws of a file | [`laws`] | [`model::laws::DocumentLaws`] |
 //! | a defect model from text | [`read_model`] | [`model::Model`] |
 //! | a defect model in code | [`ModelBuilder`] | [`model::Model`] |
 //! | equilibria over pO2, temperature, frozen-in | [`scan`] with [`ScanOptions`] | [`solve::scan::Scan`] |
-//! | from measurements back to mechanisms | [`fit`] | [`fit::FitReport`] |
+//! | from measurements back to mechanisms | [`read_measurements`], [`fit()`] | [`fit::FitReport`] |
 //!
 //! Problems come back as [`Diagnostic`]s: located (line, column, byte
 //! span), coded, with a way forward; a `Diagnostic` is a
@@ -227,6 +227,15 @@ pub fn native(host: &Host) -> generate::native::Catalogue {
 /// The mass-action law of every reaction of a read document, with K(T);
 /// a reaction that fails its checks or leaves the exact range gets a
 /// located error instead.
+///
+/// ```
+/// // Exponents that leave the exact (i64) range: refused with P107, never wrapped.
+/// let text = "host NiO\nx: 1/3037000499 h. + 1/3037000499 e' -> 1/3037000507 h. + 1/3037000507 e'";
+/// let doc = lacuna::model::read("big.kvr", text, None);
+/// let laws = lacuna::laws(&doc);
+/// let refused = laws.reactions[0].law.as_ref().unwrap_err();
+/// assert_eq!((refused.code.as_str(), refused.line, refused.column), ("P107", 2, 4));
+/// ```
 pub fn laws(doc: &model::Document) -> model::laws::DocumentLaws {
     model::laws::document_laws(doc)
 }
@@ -244,8 +253,28 @@ pub fn read_model(name: &str, text: &str, host: Option<Host>) -> Result<model::M
     model::Model::build(&doc, model::Overrides::default()).map_err(Diagnostics)
 }
 
-/// From measurements (log conductivity or concentration against pO2 and
-/// temperature) back to regimes, slopes and enthalpies.
+/// Reads a measurement table (CSV: temperature, pO2, conductivity and
+/// optionally its uncertainty; see `lacuna fit --help`) for [`fit()`].
+pub fn read_measurements(text: &str, source: &str) -> Result<fit::Measurements, Diagnostics> {
+    fit::csv_input::read_measurements(text, source).map_err(Diagnostics)
+}
+
+/// From measurements (conductivity against pO2 and temperature) back to
+/// regimes, slopes and enthalpies.
+///
+/// ```
+/// // source: common practice (Brouwer approximation): electronic
+/// // conduction by electrons with n = 2[V_O••] goes as pO2^(−1/6).
+/// let mut csv = String::from("T_K,pO2_bar,sigma_S_per_cm\n");
+/// for i in 0..9 {
+///     let po2 = 10f64.powi(-20 + 2 * i);
+///     csv.push_str(&format!("1000,{po2:e},{:e}\n", 2.0 * po2.powf(-1.0 / 6.0)));
+/// }
+/// let data = lacuna::read_measurements(&csv, "<inline>").unwrap();
+/// let report = lacuna::fit(&data, &Default::default()).unwrap();
+/// let slope = report.isotherms[0].segments[0].slope;
+/// assert!((slope + 1.0 / 6.0).abs() < 1e-9, "{slope}");
+/// ```
 pub fn fit(
     measurements: &fit::Measurements,
     options: &fit::FitOptions,
