@@ -37,6 +37,9 @@ use crate::notation::{parse_species_text, render_reaction};
 pub struct ModelBuilder {
     doc: Document,
     overrides: Overrides,
+    /// Index into the document's hosts of the host the next reactions are
+    /// checked against.
+    current_host: Option<usize>,
 }
 
 impl ModelBuilder {
@@ -49,7 +52,40 @@ impl ModelBuilder {
                 ..Document::default()
             },
             overrides: Overrides::default(),
+            current_host: Some(0),
         }
+    }
+
+    /// A builder with no host yet, for the laws of reactions in several
+    /// hosts (`host` sets the host of the reactions that follow); `build`
+    /// refuses it while it has none.
+    pub fn hostless() -> ModelBuilder {
+        ModelBuilder {
+            doc: Document {
+                source: "model".to_string(),
+                ..Document::default()
+            },
+            overrides: Overrides::default(),
+            current_host: None,
+        }
+    }
+
+    /// The host of the reactions that follow (`None`: none, so their sites
+    /// and charges cannot be checked). A model has one host: `build`
+    /// refuses a builder given several; a set of laws may have several.
+    pub fn host(mut self, host: Option<Host>) -> ModelBuilder {
+        let same = match (&host, self.current_host) {
+            (Some(h), Some(i)) => self.doc.hosts.get(i).is_some_and(|(x, _)| x == h),
+            (None, None) => true,
+            _ => false,
+        };
+        if !same {
+            self.current_host = host.map(|h| {
+                self.doc.hosts.push((h, 0));
+                self.doc.hosts.len() - 1
+            });
+        }
+        self
     }
 
     /// The name diagnostics and reports give as the model's source.
@@ -131,7 +167,11 @@ impl ModelBuilder {
         reaction: Reaction,
         line: u32,
     ) -> ModelBuilder {
-        let verdict = check_reaction(&reaction, self.doc.hosts.first().map(|(h, _)| h));
+        let host = self
+            .current_host
+            .and_then(|i| self.doc.hosts.get(i))
+            .map(|(h, _)| h);
+        let verdict = check_reaction(&reaction, host);
         let ok = verdict.ok();
         for d in verdict.diagnostics {
             self.problem(line, d);
@@ -141,7 +181,7 @@ impl ModelBuilder {
             label_span: label.map(|_| label_span),
             reaction,
             line,
-            host: Some(0),
+            host: self.current_host,
             ok,
         });
         self

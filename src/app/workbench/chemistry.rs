@@ -6,7 +6,9 @@
 //! session reaction (`crate::balance`) and offers a unique answer for
 //! `/take`; `/dope OXIDE [SITE]` ranks the incorporation mechanisms in the
 //! session's host (`crate::generate::dope`); `/law [WHICH...]` writes mass-action laws
-//! (`crate::model::laws`, the path `lacuna law` takes); `/brouwer [WHICH...]`
+//! (`crate::model::laws`, the path `lacuna law` takes, over the session's
+//! reactions and kept model lines given to `crate::model::builder`);
+//! `/brouwer [WHICH...]`
 //! builds a model of the chosen reactions and the kept model lines
 //! (`crate::model::builder`; nothing is written out and read back) and
 //! prints its exact regimes
@@ -28,7 +30,7 @@ use crate::model::builder::ModelBuilder;
 use crate::model::law::FactorKind;
 use crate::model::laws::document_laws;
 use crate::model::thermo::temperature_text;
-use crate::model::{self, Document, Overrides};
+use crate::model::{Document, Overrides};
 use crate::notation::{Span, Style, parse_reaction, render_reaction};
 use crate::report::human::write_diagnostic;
 use crate::report::law::write_law_text;
@@ -229,13 +231,6 @@ pub(super) fn dope(
     Ok(())
 }
 
-/// The session read as a model file: the document, and the line of each
-/// entry's reaction in it.
-fn session_document(session: &Session) -> (Document, Vec<u32>) {
-    let (text, lines) = file_text_with_lines(session);
-    (model::read("session", &text, None), lines)
-}
-
 /// Prints a diagnostic of the session document: on an entry's line it is
 /// shown as that reaction's, elsewhere (model lines kept from a loaded file)
 /// as the session's line as `/save` would write it.
@@ -279,8 +274,12 @@ pub(super) fn law(
         writeln!(out, "no reactions yet")?;
         return Ok(());
     }
-    let (doc, lines) = session_document(session);
-    let laws = document_laws(&doc);
+    // Every reaction with its own host, and the kept model lines (the data).
+    align_spans(session, 0..session.entries.len());
+    let every = |_: usize| true;
+    let (builder, lines, _) = session_builder(session, ModelBuilder::hostless(), &every, true);
+    let doc = builder.document();
+    let laws = document_laws(doc);
     let mut refused = 0;
     for i in chosen {
         let line = lines.get(i).copied().unwrap_or(0);
@@ -312,7 +311,7 @@ pub(super) fn law(
             }
         };
         for d in &r.data_problems {
-            print_session_diagnostic(session, out, &doc, &lines, d)?;
+            print_session_diagnostic(session, out, doc, &lines, d)?;
         }
         write_law_text(
             out,
@@ -344,7 +343,10 @@ pub(super) fn brouwer(
     }
     let chosen = session.select(args, &args.words)?;
     let host = one_host(session, args, &chosen)?;
-    let (builder, lines, unreadable) = session_model(session, &chosen, host.clone());
+    align_spans(session, chosen.iter().copied());
+    let keep = |i: usize| chosen.contains(&i);
+    let (builder, lines, unreadable) =
+        session_builder(session, ModelBuilder::new(host.clone()), &keep, false);
     let overrides = Overrides::for_slopes(builder.document());
     let doc = builder.document().clone();
     let model = match builder.overrides(overrides).build() {
@@ -551,22 +553,34 @@ fn same_host(session: &Session, chosen: &[usize], host: &Host) -> String {
         .join(" ")
 }
 
-/// The chosen reactions of the session, with the model lines kept from
-/// loaded files, as a model builder: the reactions go in as they are held,
-/// nothing is written out and read back. Items are numbered as `/save`
-/// would write the session, so that a diagnostic names the line the saved
-/// file would have. Also returns the line of each entry and the number of
-/// lines of loaded files left out because they did not read as reactions
-/// (they are no reactions of the session). The data lines of reactions not
-/// chosen are left out with them.
-fn session_model(
+/// Checks the entries again from their own lines (as `/balance` does), so
+/// that their reactions' spans point into the line `/save` writes; a
+/// reaction loaded from a file points into the file's line, which may be
+/// spaced differently.
+fn align_spans(session: &mut Session, entries: impl Iterator<Item = usize>) {
+    for i in entries {
+        session.recheck(i);
+    }
+}
+
+/// The reactions of the session that `keep` accepts, with the model lines
+/// kept from loaded files, added to `builder`: the reactions go in as they
+/// are held, nothing is written out and read back. With `own_hosts` each
+/// reaction is checked against its own host, else against the builder's.
+/// Items are numbered as `/save` would write the session, so that a
+/// diagnostic names the line the saved file would have. Also returns the
+/// line of each entry and the number of lines of loaded files left out
+/// because they did not read as reactions (they are no reactions of the
+/// session). The data lines of reactions not kept are left out with them.
+fn session_builder(
     session: &Session,
-    chosen: &[usize],
-    host: Host,
+    mut builder: ModelBuilder,
+    keep: &dyn Fn(usize) -> bool,
+    own_hosts: bool,
 ) -> (ModelBuilder, Vec<u32>, usize) {
     // The numbering only: the text itself is not read.
     let (_, lines) = file_text_with_lines(session);
-    let mut builder = ModelBuilder::new(host).source("session");
+    builder = builder.source("session");
     let mut unreadable = 0;
     let mut dropped_labels = Vec::new();
     let take =
@@ -585,7 +599,10 @@ fn session_model(
             builder = take(builder, at, text, &mut unreadable);
         }
         let at = lines.get(i).copied().unwrap_or(0);
-        if chosen.contains(&i) {
+        if keep(i) {
+            if own_hosts {
+                builder = builder.host(entry.host.as_ref().map(|slot| slot.host.clone()));
+            }
             builder = builder.skip_to_line(at).parsed_reaction(
                 entry.label.as_deref(),
                 entry.reaction.clone(),
