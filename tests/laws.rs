@@ -310,3 +310,44 @@ fn overflowing_law_is_refused_alike_by_the_command_and_the_workbench() {
     }
     assert!(bench_out.contains("reaction 1:1:4"), "{bench_out}");
 }
+
+#[test]
+fn the_workbench_locates_a_refused_law_on_the_line_it_shows() {
+    // A loaded line spaced differently from the line the workbench shows
+    // (`bad:  O_O` is shown `bad: O_O`): the error points at the reaction
+    // in the shown line, column 6, as the command points at it in the file,
+    // column 7. source: common practice (charge balance, e′ alone cannot
+    // balance V_O••).
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(
+        dir.path().join("spaced.kvr"),
+        "host ZrO2\nbad:  O_O -> V_O.. + e' + 1/2 O2(g)\n",
+    )
+    .expect("writes");
+    let cli = law()
+        .current_dir(dir.path())
+        .arg("spaced.kvr")
+        .output()
+        .expect("runs");
+    assert_eq!(cli.status.code(), Some(1));
+    let cli_err = String::from_utf8_lossy(&cli.stderr).to_string();
+    assert!(
+        cli_err.contains("[M715]") && cli_err.contains("spaced.kvr:2:7"),
+        "{cli_err}"
+    );
+    let bench = cargo_bin_cmd!("lacuna")
+        .current_dir(dir.path())
+        .args(["repl", "--color", "never", "--no-history"])
+        .write_stdin("/load spaced.kvr\n/law all\n")
+        .output()
+        .expect("runs");
+    let out = String::from_utf8_lossy(&bench.stdout).to_string();
+    assert!(
+        out.contains("[M715]") && out.contains(" --> reaction 1:1:6"),
+        "{out}"
+    );
+    assert!(
+        out.contains("1 | bad: O_O -> V_O.. + e' + 1/2 O2(g)\n  |      ^"),
+        "{out}"
+    );
+}
