@@ -266,3 +266,88 @@ fn invalid_utf8_is_reported_with_its_line() {
             "error[P110]: line 3 is not valid UTF-8",
         ));
 }
+
+#[test]
+fn overflowing_law_is_refused_alike_by_the_command_and_the_workbench() {
+    // source: common practice (i64 range, 2^63 − 1 ≈ 9.22e18): the
+    // exponents 1/3037000499 − 1/3037000507 = 8/(3037000499·3037000507)
+    // need a denominator near 9.22e18, beyond what exact i64 fractions hold.
+    let dir = tempfile::tempdir().expect("temp dir");
+    let line = "x: 1/3037000499 h. + 1/3037000499 e' -> 1/3037000507 h. + 1/3037000507 e'";
+    std::fs::write(dir.path().join("big.kvr"), format!("host NiO\n{line}\n")).expect("writes");
+    let cli = law()
+        .current_dir(dir.path())
+        .arg("big.kvr")
+        .output()
+        .expect("runs");
+    assert_eq!(cli.status.code(), Some(1), "the command fails");
+    let cli_err = String::from_utf8_lossy(&cli.stderr).to_string();
+    assert!(cli.stdout.is_empty(), "no law is printed");
+    assert!(
+        cli_err.contains("error[P107]: the exponents of this law grew beyond the exact range"),
+        "{cli_err}"
+    );
+    assert!(cli_err.contains("big.kvr:2:4"), "{cli_err}");
+    let bench = cargo_bin_cmd!("lacuna")
+        .current_dir(dir.path())
+        .args(["repl", "--color", "never", "--no-history"])
+        .write_stdin("/load big.kvr\n/law all\n")
+        .output()
+        .expect("runs");
+    assert_ne!(
+        bench.status.code(),
+        Some(0),
+        "the workbench reports a problem"
+    );
+    let bench_out = String::from_utf8_lossy(&bench.stdout).to_string();
+    // The same verdict, code, message, column and help from both.
+    for part in [
+        "error[P107]: the exponents of this law grew beyond the exact range",
+        "= help: scale the coefficients down",
+    ] {
+        assert!(cli_err.contains(part), "{cli_err}");
+        assert!(bench_out.contains(part), "{bench_out}");
+    }
+    assert!(bench_out.contains("reaction 1:1:4"), "{bench_out}");
+}
+
+#[test]
+fn the_workbench_locates_a_refused_law_on_the_line_it_shows() {
+    // A loaded line spaced differently from the line the workbench shows
+    // (`bad:  O_O` is shown `bad: O_O`): the error points at the reaction
+    // in the shown line, column 6, as the command points at it in the file,
+    // column 7. source: common practice (charge balance, e′ alone cannot
+    // balance V_O••).
+    let dir = tempfile::tempdir().expect("temp dir");
+    std::fs::write(
+        dir.path().join("spaced.kvr"),
+        "host ZrO2\nbad:  O_O -> V_O.. + e' + 1/2 O2(g)\n",
+    )
+    .expect("writes");
+    let cli = law()
+        .current_dir(dir.path())
+        .arg("spaced.kvr")
+        .output()
+        .expect("runs");
+    assert_eq!(cli.status.code(), Some(1));
+    let cli_err = String::from_utf8_lossy(&cli.stderr).to_string();
+    assert!(
+        cli_err.contains("[M715]") && cli_err.contains("spaced.kvr:2:7"),
+        "{cli_err}"
+    );
+    let bench = cargo_bin_cmd!("lacuna")
+        .current_dir(dir.path())
+        .args(["repl", "--color", "never", "--no-history"])
+        .write_stdin("/load spaced.kvr\n/law all\n")
+        .output()
+        .expect("runs");
+    let out = String::from_utf8_lossy(&bench.stdout).to_string();
+    assert!(
+        out.contains("[M715]") && out.contains(" --> reaction 1:1:6"),
+        "{out}"
+    );
+    assert!(
+        out.contains("1 | bad: O_O -> V_O.. + e' + 1/2 O2(g)\n  |      ^"),
+        "{out}"
+    );
+}

@@ -8,6 +8,7 @@ mod check_cli;
 mod docs;
 mod dope;
 mod equilibrium_properties;
+mod facade;
 mod fit;
 mod generated_reactions;
 mod hostile;

@@ -280,6 +280,27 @@ impl Diagnostic {
     }
 }
 
+/// One line: `error[P107] at line 2, column 4: message (help: …)`; the
+/// place is left out when the diagnostic is not tied to a line.
+impl fmt::Display for Diagnostic {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}[{}]", self.severity.as_str(), self.code)?;
+        if self.line > 0 {
+            write!(f, " at line {}", self.line)?;
+            if self.column > 0 {
+                write!(f, ", column {}", self.column)?;
+            }
+        }
+        write!(f, ": {}", self.message)?;
+        if let Some(help) = &self.help {
+            write!(f, " (help: {help})")?;
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for Diagnostic {}
+
 /// 1-based character column of byte offset `byte` in `text` (clamped to the text).
 pub fn column_of(text: &str, byte: usize) -> u32 {
     let mut byte = byte.min(text.len());

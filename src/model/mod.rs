@@ -9,7 +9,9 @@
 //! unit, the automatically built electroneutrality, and the exact
 //! log-linear `Network` the solvers work on.
 
+pub mod builder;
 pub mod law;
+pub mod laws;
 pub mod network;
 pub mod thermo;
 
@@ -45,6 +47,7 @@ pub struct ReactionLine {
 
 /// A `K`, `dH` or `dS` line.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub enum Datum {
     /// K, and the temperature it holds at (`None`: the model temperature).
     K {
@@ -67,6 +70,7 @@ pub struct DataLine {
 
 /// How a fixed amount is expressed.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub enum Basis {
     /// Fraction of the sites of the subject's sublattice.
     SiteFraction,
@@ -239,7 +243,13 @@ fn label_and_value<'a>(
     Ok((label, value))
 }
 
-fn read_model_line(doc: &mut Document, number: u32, line: &str, keyword: &str, rest: Span) {
+pub(crate) fn read_model_line(
+    doc: &mut Document,
+    number: u32,
+    line: &str,
+    keyword: &str,
+    rest: Span,
+) {
     let rest_text = &line[rest.clone()];
     let result = match keyword {
         "K" => read_k(line, rest_text).map(|d| doc.data.push(with_line(d, number))),
@@ -524,6 +534,7 @@ fn read_fix(line: &str, rest: &str) -> Result<FixLine, Diagnostic> {
 
 /// A species whose concentration the model solves for.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct ModelSpecies {
     pub key: String,
     pub kind: FactorKind,
@@ -544,6 +555,7 @@ pub struct ModelSpecies {
 
 /// An equilibrium with data.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct Equilibrium {
     pub label: String,
     pub law: Law,
@@ -560,6 +572,7 @@ pub struct Equilibrium {
 
 /// A gas in the model: O2 is swept, the others have fixed pressures.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Gas {
     pub key: String,
     pub ascii: String,
@@ -571,6 +584,7 @@ pub struct Gas {
 
 /// A fixed total (a dopant level).
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Total {
     pub subject_unicode: String,
     pub subject_ascii: String,
@@ -586,6 +600,7 @@ pub struct Total {
 
 /// A model ready to solve.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct Model {
     pub source: String,
     pub host: Host,
@@ -607,6 +622,7 @@ pub struct Model {
 
 /// Settings from the command line that take precedence over the file.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
+#[non_exhaustive]
 pub struct Overrides {
     pub temperature: Option<f64>,
     pub po2_range: Option<(f64, f64)>,
@@ -714,6 +730,24 @@ fn model_species(factor: &Factor, host: &Host) -> ModelSpecies {
         content,
         frozen_identity: frozen_identity(&factor.entity),
     }
+}
+
+/// Electroneutrality of charged species `(symbol, charge)`: the negative
+/// ones, each with its charge as a factor, equal the positive ones
+/// (`2[O_i″] + n = 2[V_O••] + p`). Uncharged species are left out.
+pub fn neutrality_text(charged: &[(&str, i32)]) -> String {
+    let side = |positive: bool| -> String {
+        charged
+            .iter()
+            .filter(|(_, z)| if positive { *z > 0 } else { *z < 0 })
+            .map(|(symbol, z)| match z.unsigned_abs() {
+                1 => (*symbol).to_string(),
+                n => format!("{n}{symbol}"),
+            })
+            .collect::<Vec<_>>()
+            .join(" + ")
+    };
+    format!("{} = {}", side(false), side(true))
 }
 
 /// Resolves the data lines of one label into K(T).
@@ -1352,28 +1386,13 @@ impl Model {
 
     /// Electroneutrality with every charged species: negative side = positive side.
     pub fn neutrality(&self, style: Style) -> String {
-        let side = |positive: bool| -> String {
-            let terms: Vec<String> = self
-                .species
-                .iter()
-                .enumerate()
-                .filter(|(_, s)| if positive { s.charge > 0 } else { s.charge < 0 })
-                .map(|(i, s)| {
-                    let n = s.charge.unsigned_abs();
-                    let symbol = self.symbol(i, style);
-                    if n == 1 {
-                        symbol.to_string()
-                    } else {
-                        format!("{n}{symbol}")
-                    }
-                })
-                .collect();
-            terms.join(" + ")
-        };
         if self.species.iter().all(|s| s.charge == 0) {
             return "no charged species".to_string();
         }
-        format!("{} = {}", side(false), side(true))
+        let terms: Vec<(&str, i32)> = (0..self.species.len())
+            .map(|i| (self.symbol(i, style), self.species[i].charge))
+            .collect();
+        neutrality_text(&terms)
     }
 
     /// ln K of every equilibrium at `t` kelvin, or a diagnostic naming the

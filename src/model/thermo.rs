@@ -19,6 +19,7 @@ pub const ZERO_CELSIUS: f64 = 273.15;
 
 /// How the equilibrium constant of one reaction is known.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub enum Thermo {
     /// K at one temperature (kelvin) only.
     Fixed { k: f64, at: f64 },

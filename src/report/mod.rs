@@ -14,8 +14,13 @@ pub mod gnu;
 pub mod human;
 #[cfg(feature = "serde")]
 pub mod json;
+pub mod law;
+pub mod regimes;
+#[cfg(feature = "serde")]
+pub mod results;
 #[cfg(feature = "serde")]
 pub mod sarif;
+pub mod scan;
 pub mod svg;
 
 use crate::base::diagnostic::Severity;

@@ -616,6 +616,7 @@ impl System {
 
 /// One solved state.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Point {
     /// bar
     pub po2: f64,

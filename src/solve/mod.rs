@@ -3,3 +3,4 @@
 
 pub mod equilibrium;
 pub mod regimes;
+pub mod scan;

@@ -2,19 +2,15 @@
 //! Exit 0 when the species balance (uniquely or in several ways), 1 when
 //! they cannot or the reaction has errors, 2 for usage errors.
 
-use super::shared::{
-    ColorChoice, JsonDiagnostic, NotationStyle, OutputFormat, fail, host_argument, print_json,
-};
+use super::shared::{ColorChoice, NotationStyle, OutputFormat, fail, host_argument, print_json};
 use crate::balance::checked::check_and_balance;
 use crate::balance::{Outcome, Status};
 use crate::base::diagnostic::Diagnostic;
-use crate::base::number;
 use crate::host::Host;
-use crate::notation::{parse_reaction, render_reaction};
+use crate::notation::parse_reaction;
 use crate::report::balance::write_outcome;
 use crate::report::{Palette, human::write_diagnostic};
 use clap::Args;
-use serde::Serialize;
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -49,25 +45,7 @@ pub struct BalanceArgs {
     pub color: ColorChoice,
 }
 
-#[derive(Debug, Serialize)]
-struct JsonTerm<'a> {
-    species: &'a str,
-    side: &'static str,
-    coefficient: String,
-}
-
-#[derive(Debug, Serialize)]
-struct JsonReaction<'a> {
-    text: String,
-    terms: Vec<JsonTerm<'a>>,
-}
-
-#[derive(Debug, Serialize)]
-struct JsonReport<'a> {
-    status: &'static str,
-    reactions: Vec<JsonReaction<'a>>,
-    diagnostics: Vec<JsonDiagnostic<'a>>,
-}
+use crate::report::results::balance::balance_json;
 
 pub fn run(args: &BalanceArgs) -> ExitCode {
     let Some(text) = args.positional.as_ref().or(args.reaction.as_ref()) else {
@@ -89,7 +67,13 @@ pub fn run(args: &BalanceArgs) -> ExitCode {
     let (outcome, diagnostics) = balance_text(&text, host.as_ref(), !args.free);
     let result = match args.format {
         OutputFormat::Human => human(args, &text, outcome.as_ref(), &diagnostics),
-        OutputFormat::Json => print_json(&to_json(args, &text, outcome.as_ref(), &diagnostics)),
+        OutputFormat::Json => print_json(&balance_json(
+            &text,
+            outcome.as_ref(),
+            &diagnostics,
+            args.style.style(),
+            args.conventional,
+        )),
     };
     match result {
         Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
@@ -147,48 +131,4 @@ fn human(
         printed = true;
     }
     out.flush()
-}
-
-fn to_json<'a>(
-    args: &BalanceArgs,
-    text: &'a str,
-    outcome: Option<&Outcome>,
-    diagnostics: &'a [Diagnostic],
-) -> JsonReport<'a> {
-    let style = args.style.style();
-    let status = outcome.map_or(Status::None, |o| o.status);
-    let reactions = outcome
-        .map(|o| o.reactions.as_slice())
-        .unwrap_or_default()
-        .iter()
-        .map(|b| {
-            let reaction = if args.conventional {
-                &b.conventional
-            } else {
-                &b.reaction
-            };
-            let terms = b
-                .terms
-                .iter()
-                .map(|t| JsonTerm {
-                    species: text.get(t.span.clone()).unwrap_or(""),
-                    side: t.side.as_str(),
-                    coefficient: number::to_plain(if args.conventional {
-                        t.conventional
-                    } else {
-                        t.coefficient
-                    }),
-                })
-                .collect();
-            JsonReaction {
-                text: render_reaction(reaction, style),
-                terms,
-            }
-        })
-        .collect();
-    JsonReport {
-        status: status.as_str(),
-        reactions,
-        diagnostics: diagnostics.iter().map(JsonDiagnostic::from).collect(),
-    }
 }

@@ -4,20 +4,18 @@
 //! reached, 2 for usage errors (unreadable host, dopant, site or level).
 
 use super::shared::{ColorChoice, fail, host_argument};
-use super::shared::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
+use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
 use crate::generate::dope::compound_text;
 use crate::generate::dope::level::{self, Composition, Level, Volume};
-use crate::generate::dope::{
-    CAVEAT, Dopant, DopeOptions, Gas, Report, SizeMatch, compensating_text, mechanisms,
-    parse_dopant, parse_site, reaction_text, site_name,
-};
+use crate::generate::dope::{Dopant, DopeOptions, Report, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
 use crate::report::dope::{TableInput, write_report};
 use crate::report::human::write_diagnostic;
+use crate::report::results::dope::{DopeInput, dope_json};
+use crate::solve::scan::composition_note;
 use clap::Args;
-use serde::Serialize;
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -156,12 +154,18 @@ pub fn run(args: &DopeArgs) -> ExitCode {
             &diagnostics,
             volume,
         ),
-        OutputFormat::Json => print_json(&to_json(
-            args,
-            &host,
-            &dopant,
-            &report,
-            level_result.as_ref(),
+        OutputFormat::Json => print_json(&dope_json(
+            &DopeInput {
+                host: &host,
+                dopant: &dopant,
+                report: &report,
+                style: args.style.style(),
+                integers: args.integers,
+            },
+            match &level_result {
+                Some(LevelResult::Composition(c, rank)) => Some((&**c, *rank)),
+                _ => None,
+            },
             &diagnostics,
         )),
     };
@@ -289,24 +293,10 @@ fn write_level(
     for (k, v) in rows {
         writeln!(out, "  {}  {v}", pad(&k, w))?;
     }
-    if let Some(note) = dilute_note(c) {
+    if let Some(note) = composition_note(c) {
         writeln!(out, "note: {note}")?;
     }
     Ok(())
-}
-
-/// Said whenever a defect fraction passes 1 %: the numbers stay exact
-/// bookkeeping, but the dilute-solution picture behind activities fails.
-fn dilute_note(c: &Composition) -> Option<&'static str> {
-    let largest = c
-        .defects
-        .iter()
-        .map(|d| d.fraction)
-        .max()
-        .unwrap_or_default();
-    (largest > Q::new(1, 100)).then_some(
-        "above about 1 % defects interact and associate; these fractions are bookkeeping of the composition, not activities, and the dilute picture does not hold here",
-    )
 }
 
 fn level_rows(
@@ -362,179 +352,4 @@ fn level_rows(
         )),
     }
     rows
-}
-
-#[derive(Serialize)]
-struct JsonSite {
-    site: String,
-    cn: u8,
-    source: &'static str,
-}
-
-#[derive(Serialize)]
-struct JsonRadius {
-    dopant_pm: f64,
-    host_pm: f64,
-    cn: u8,
-    dopant_cn_used: u8,
-    host_cn_used: u8,
-    mismatch_percent: f64,
-}
-
-impl JsonRadius {
-    fn from(s: &SizeMatch) -> Self {
-        JsonRadius {
-            dopant_pm: s.dopant.pm,
-            host_pm: s.host.pm,
-            cn: s.dopant.cn,
-            dopant_cn_used: s.dopant.cn_used,
-            host_cn_used: s.host.cn_used,
-            mismatch_percent: (s.mismatch * 1000.0).round() / 10.0,
-        }
-    }
-}
-
-#[derive(Serialize)]
-struct JsonMechanism {
-    rank: usize,
-    site: String,
-    family: &'static str,
-    compensation: String,
-    reaction: String,
-    integer: String,
-    radius: Option<JsonRadius>,
-    second_site_radius: Option<JsonRadius>,
-    effective_charge: i64,
-    gas: &'static str,
-    score: f64,
-    dominates: &'static str,
-    notes: Vec<String>,
-}
-
-#[derive(Serialize)]
-struct JsonDefect {
-    species: String,
-    fraction: String,
-    basis: String,
-}
-
-#[derive(Serialize)]
-struct JsonLevel {
-    mechanism: usize,
-    formula: String,
-    formula_exact: String,
-    mol_fraction: String,
-    cation_fraction: String,
-    defects: Vec<JsonDefect>,
-    dopant_per_cm3: Option<f64>,
-    note: Option<&'static str>,
-}
-
-#[derive(Serialize)]
-struct JsonDopant {
-    written: String,
-    element: &'static str,
-    charge: i64,
-    compound: String,
-}
-
-#[derive(Serialize)]
-struct JsonStructure {
-    name: &'static str,
-    detail: Option<String>,
-    sites: Vec<JsonSite>,
-}
-
-#[derive(Serialize)]
-struct JsonDope<'a> {
-    host: String,
-    dopant: JsonDopant,
-    structure: JsonStructure,
-    mechanisms: Vec<JsonMechanism>,
-    level: Option<JsonLevel>,
-    caveat: &'static str,
-    diagnostics: Vec<JsonDiagnostic<'a>>,
-}
-
-fn to_json<'a>(
-    args: &DopeArgs,
-    host: &Host,
-    dopant: &Dopant,
-    report: &Report,
-    level: Option<&LevelResult>,
-    diagnostics: &'a [Diagnostic],
-) -> JsonDope<'a> {
-    let style = args.style.style();
-    JsonDope {
-        host: host.formula_text.clone(),
-        dopant: JsonDopant {
-            written: dopant.written.clone(),
-            element: dopant.symbol(),
-            charge: dopant.charge,
-            compound: compound_text(dopant),
-        },
-        structure: JsonStructure {
-            name: report.structure.name,
-            detail: report.structure.detail.clone(),
-            sites: report
-                .structure
-                .sites
-                .iter()
-                .map(|s| JsonSite {
-                    site: host
-                        .sublattices
-                        .get(s.sublattice)
-                        .map_or("?".into(), |x| x.name()),
-                    cn: s.cn,
-                    source: s.source.as_str(),
-                })
-                .collect(),
-        },
-        mechanisms: report
-            .mechanisms
-            .iter()
-            .map(|m| JsonMechanism {
-                rank: m.rank,
-                site: site_name(host, m.site),
-                family: m.compensation.family(),
-                compensation: compensating_text(host, m, style),
-                reaction: reaction_text(m, args.integers, style),
-                integer: reaction_text(m, true, style),
-                radius: m.size.as_ref().map(JsonRadius::from),
-                second_site_radius: m.second_size.as_ref().map(JsonRadius::from),
-                effective_charge: m.effective_charge,
-                gas: match m.gas {
-                    Gas::None => "none",
-                    Gas::Releases => "releases",
-                    Gas::TakesUp => "takes up",
-                },
-                score: (m.score * 100.0).round() / 100.0,
-                dominates: m.compensation.conditions(),
-                notes: m.notes.clone(),
-            })
-            .collect(),
-        level: match level {
-            Some(LevelResult::Composition(c, rank)) => Some(JsonLevel {
-                mechanism: *rank,
-                formula: level::formula_text(&c.formula),
-                formula_exact: level::formula_exact(&c.formula),
-                mol_fraction: number::to_plain(c.mol_fraction),
-                cation_fraction: number::to_plain(c.cation_fraction),
-                defects: c
-                    .defects
-                    .iter()
-                    .map(|d| JsonDefect {
-                        species: d.species.clone(),
-                        fraction: number::to_plain(d.fraction),
-                        basis: d.basis.clone(),
-                    })
-                    .collect(),
-                dopant_per_cm3: c.per_cm3,
-                note: dilute_note(c),
-            }),
-            _ => None,
-        },
-        caveat: CAVEAT,
-        diagnostics: diagnostics.iter().map(JsonDiagnostic::from).collect(),
-    }
 }

@@ -12,6 +12,7 @@ use crate::fit::segment::SegmentOptions;
 use crate::fit::{FitError, FitOptions, analyse, csv_input};
 use crate::model::{self, Model, Overrides};
 use crate::report::Palette;
+use crate::report::results::fit::fit_failure;
 use crate::report::{fit as report, svg};
 use clap::{Args, ValueEnum};
 use std::io::{self, Read, Write};
@@ -264,20 +265,8 @@ fn data_problems(args: &FitArgs, source: &str, text: &str, diagnostics: &[Diagno
         if count == 1 { "" } else { "s" }
     );
     if args.format == FitFormat::Json {
-        let items: Vec<serde_json::Value> = diagnostics
-            .iter()
-            .map(|d| {
-                serde_json::json!({
-                    "severity": d.severity.as_str(),
-                    "code": d.code.as_str(),
-                    "message": d.message,
-                    "line": d.line,
-                    "column": d.column,
-                    "help": d.help,
-                })
-            })
-            .collect();
-        let value = serde_json::json!({ "source": source, "diagnostics": items });
+        let value = serde_json::to_string(&fit_failure(source, diagnostics))
+            .unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
         let _ = writeln!(io::stdout(), "{value}");
     }
     ExitCode::from(1)

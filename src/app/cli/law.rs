@@ -1,14 +1,15 @@
 //! `lacuna law`: the mass-action law of each reaction, with K(T) and the
 //! units of K, as Unicode, plain text, LaTeX or JSON.
 
-use super::model_input::{Source, diagnostic_json, gather, print_diagnostics};
+use super::model_input::{Source, gather, print_diagnostics};
 use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
-use crate::base::number;
-use crate::model::law::{FactorKind, Law, k_of_t_text, mass_action_law, write_law_text};
-use crate::model::thermo::{self, Thermo};
-use crate::model::{self, DataLine, Document};
+use crate::model::laws::{LawEntry, document_laws, document_neutrality};
+use crate::model::thermo;
+use crate::model::{self, Document};
 use crate::notation::Style;
+use crate::report::law::write_law_text;
+use crate::report::results::law::law_report;
 use clap::{Args, ValueEnum};
 use std::io::{self, BufWriter, Write};
 use std::path::PathBuf;
@@ -51,15 +52,6 @@ pub struct LawArgs {
     pub color: ColorChoice,
 }
 
-/// A law with where it came from and its data.
-struct Entry {
-    source: String,
-    line: u32,
-    law: Law,
-    thermo: Option<Thermo>,
-    host: Option<String>,
-}
-
 pub fn run(args: &LawArgs) -> ExitCode {
     if args.files.is_empty() && args.reactions.is_empty() {
         return fail(
@@ -88,8 +80,10 @@ pub fn run(args: &LawArgs) -> ExitCode {
         let (doc, diags) = read_source(source, host.clone());
         any_error |= diags.iter().any(Diagnostic::is_error);
         let t = temperature.or(doc.temperature.map(|(t, _)| t));
-        let (found, thermo_problems) = laws_of(&doc);
-        any_error |= thermo_problems.iter().any(Diagnostic::is_error);
+        let laws = document_laws(&doc);
+        let thermo_problems = laws.problems();
+        any_error |= laws.has_errors();
+        let found: Vec<LawEntry> = laws.laws().cloned().collect();
         let mut all = diags;
         all.extend(thermo_problems);
         all.sort_by_key(|d| {
@@ -102,7 +96,7 @@ pub fn run(args: &LawArgs) -> ExitCode {
         if !all.is_empty() {
             problems.push((source.name.clone(), doc.lines.clone(), all));
         }
-        if let Some((unicode, ascii)) = neutrality(&found, &doc) {
+        if let Some((unicode, ascii)) = document_neutrality(&found, &doc) {
             neutralities.push((source.name.clone(), unicode, ascii));
         }
         for _ in &found {
@@ -145,107 +139,10 @@ fn read_source(source: &Source, host: Option<crate::host::Host>) -> (Document, V
     (doc, diags)
 }
 
-/// The laws of every reaction that passed its checks, with their data.
-fn laws_of(doc: &Document) -> (Vec<Entry>, Vec<Diagnostic>) {
-    let mut entries = Vec::new();
-    let mut problems = Vec::new();
-    for r in &doc.reactions {
-        if !r.ok {
-            problems.push(
-                Diagnostic::new(
-                    crate::base::diagnostic::Code::NoLaw,
-                    r.reaction.span.clone(),
-                    "no mass-action law is written for a reaction that does not pass its checks",
-                )
-                .with_help("fix the problems reported for this line; the law of an unbalanced reaction would be wrong")
-                .locate(r.line, doc.line_text(r.line)),
-            );
-            continue;
-        }
-        let Ok(law) = mass_action_law(&r.reaction, r.label.as_deref()) else {
-            continue;
-        };
-        let data: Vec<&DataLine> = match &r.label {
-            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
-            None => Vec::new(),
-        };
-        // A K without `at` holds at the file's temperature line only.
-        let file_temperature = doc.temperature.map(|(t, _)| t);
-        let thermo = match model::resolve_thermo(&data, file_temperature, r.line) {
-            Ok(t) => t.map(|(t, _)| t),
-            Err((line, d)) => {
-                problems.push(d.locate(line, doc.line_text(line)));
-                None
-            }
-        };
-        let host = r
-            .host
-            .and_then(|i| doc.hosts.get(i))
-            .map(|(h, _)| h.formula_text.clone());
-        entries.push(Entry {
-            source: doc.source.clone(),
-            line: r.line,
-            law,
-            thermo,
-            host,
-        });
-    }
-    (entries, problems)
-}
-
-/// Electroneutrality over every charged species of the source's laws and
-/// fixed dopants, when there are any.
-fn neutrality(entries: &[Entry], doc: &Document) -> Option<(String, String)> {
-    let mut charged: Vec<(String, String, i32)> = Vec::new();
-    for e in entries {
-        for f in &e.law.factors {
-            if f.kind.is_concentration()
-                && f.charge != 0
-                && !charged.iter().any(|c| c.0 == f.unicode)
-            {
-                charged.push((f.unicode.clone(), f.ascii.clone(), f.charge));
-            }
-        }
-    }
-    for fix in &doc.fixes {
-        if let Some(f) =
-            crate::model::law::factor_of(&crate::notation::Entity::Species(fix.subject.clone()))
-        {
-            if f.kind == FactorKind::Defect
-                && f.charge != 0
-                && !charged.iter().any(|c| c.0 == f.unicode)
-            {
-                charged.push((f.unicode, f.ascii, f.charge));
-            }
-        }
-    }
-    if !charged.iter().any(|c| c.2 > 0) || !charged.iter().any(|c| c.2 < 0) {
-        return None;
-    }
-    let side = |positive: bool, ascii: bool| -> String {
-        charged
-            .iter()
-            .filter(|c| (c.2 > 0) == positive)
-            .map(|(u, a, z)| {
-                let symbol = if ascii { a } else { u };
-                match z.unsigned_abs() {
-                    1 => symbol.clone(),
-                    n => format!("{n}{symbol}"),
-                }
-            })
-            .collect::<Vec<_>>()
-            .join(" + ")
-    };
-    Some((
-        format!("{} = {}", side(false, false), side(true, false)),
-        format!("{} = {}", side(false, true), side(true, true)),
-    ))
-}
-
 fn write_text(
     out: &mut dyn Write,
     format: LawFormat,
-    entries: &[Entry],
+    entries: &[LawEntry],
     temperatures: &[Option<f64>],
     neutralities: &[(String, String, String)],
 ) -> io::Result<()> {
@@ -283,82 +180,19 @@ fn write_text(
 
 fn write_json(
     out: &mut dyn Write,
-    entries: &[Entry],
+    entries: &[LawEntry],
     temperatures: &[Option<f64>],
     neutralities: &[(String, String, String)],
     problems: &[(String, Vec<String>, Vec<Diagnostic>)],
 ) -> io::Result<()> {
-    let laws: Vec<serde_json::Value> = entries
-        .iter()
-        .zip(temperatures)
-        .map(|(e, t)| {
-            let factors: Vec<serde_json::Value> = e
-                .law
-                .factors
-                .iter()
-                .map(|f| {
-                    serde_json::json!({
-                        "species": f.species,
-                        "kind": f.kind.as_str(),
-                        "symbol": f.unicode,
-                        "exponent": number::to_plain(f.exponent),
-                    })
-                })
-                .collect();
-            let mut value = serde_json::json!({
-                "reaction": e.law.reaction_unicode,
-                "text": e.law.text(Style::Unicode),
-                "ascii": e.law.text(Style::Ascii),
-                "latex": e.law.text(Style::Latex),
-                "factors": factors,
-                "assumptions": e.law.assumptions,
-                "units": e.law.units_text(e.host.as_deref()),
-                "source": e.source,
-                "line": e.line,
-                "label": e.law.label,
-            });
-            if let (Some(thermo), Some(map)) = (&e.thermo, value.as_object_mut()) {
-                let mut k = serde_json::json!({
-                    "text": k_of_t_text(&e.law, thermo, *t, Style::Unicode),
-                });
-                if let Some(km) = k.as_object_mut() {
-                    match *thermo {
-                        Thermo::Fixed { k: value, at } => {
-                            km.insert("K".into(), value.into());
-                            km.insert("temperature_K".into(), at.into());
-                        }
-                        Thermo::Arrhenius {
-                            dh_ev, ds_ev_per_k, ..
-                        } => {
-                            km.insert("dH_eV".into(), dh_ev.into());
-                            km.insert("dS_eV_per_K".into(), ds_ev_per_k.into());
-                            if let Some(t) = t {
-                                if let Ok(ln_k) = thermo.ln_k(*t) {
-                                    km.insert("K".into(), ln_k.exp().into());
-                                    km.insert("temperature_K".into(), (*t).into());
-                                }
-                            }
-                        }
-                    }
-                }
-                map.insert("k".into(), k);
-            }
-            value
-        })
-        .collect();
-    let neutrality: Vec<serde_json::Value> = neutralities
-        .iter()
-        .map(|(s, u, _)| serde_json::json!({"source": s, "text": u}))
-        .collect();
-    let diagnostics: Vec<serde_json::Value> = problems
-        .iter()
-        .flat_map(|(name, _, diags)| diags.iter().map(move |d| diagnostic_json(d, name)))
-        .collect();
-    let report = serde_json::json!({
-        "laws": laws,
-        "neutrality": neutrality,
-        "diagnostics": diagnostics,
-    });
+    let report = law_report(
+        entries,
+        temperatures,
+        neutralities,
+        problems
+            .iter()
+            .map(|(name, _, diags)| (name.as_str(), diags.as_slice())),
+    );
     serde_json::to_writer_pretty(&mut *out, &report).map_err(io::Error::other)?;
     writeln!(out)
 }

@@ -107,19 +107,3 @@ pub(super) fn print_diagnostics(
     }
     Ok(())
 }
-
-/// A diagnostic as a JSON value (same keys as `check --format json`).
-pub(super) fn diagnostic_json(d: &Diagnostic, source: &str) -> serde_json::Value {
-    let mut value = serde_json::json!({
-        "severity": d.severity.as_str(),
-        "code": d.code.as_str(),
-        "message": d.message,
-        "line": d.line,
-        "column": d.column,
-        "source": source,
-    });
-    if let (Some(help), Some(map)) = (&d.help, value.as_object_mut()) {
-        map.insert("help".to_string(), serde_json::Value::String(help.clone()));
-    }
-    value
-}

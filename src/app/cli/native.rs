@@ -1,13 +1,13 @@
 //! `lacuna native`: the intrinsic defect reactions of a host, balanced.
 
 use super::shared::{ColorChoice, fail, host_argument};
-use super::shared::{JsonDiagnostic, NotationStyle, OutputFormat, print_json};
+use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::generate::native::catalogue;
 use crate::notation::render_reaction;
 use crate::report::human::write_diagnostic;
+use crate::report::results::native::native_json;
 use clap::Args;
-use serde::Serialize;
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -26,21 +26,6 @@ pub struct NativeArgs {
     /// When to use colour.
     #[arg(long, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
     pub color: ColorChoice,
-}
-
-#[derive(Serialize)]
-struct JsonFamily {
-    family: String,
-    text: String,
-}
-
-#[derive(Serialize)]
-struct JsonNative<'a> {
-    host: &'a str,
-    ratio: String,
-    reactions: Vec<JsonFamily>,
-    skipped: Vec<String>,
-    diagnostics: Vec<JsonDiagnostic<'a>>,
 }
 
 pub fn run(args: &NativeArgs) -> ExitCode {
@@ -88,20 +73,7 @@ pub fn run(args: &NativeArgs) -> ExitCode {
         );
     }
     let result = match args.format {
-        OutputFormat::Json => print_json(&JsonNative {
-            host: &host.formula_text,
-            ratio: host.ratio_text(),
-            reactions: catalogue
-                .reactions
-                .iter()
-                .map(|r| JsonFamily {
-                    family: r.name.clone(),
-                    text: render_reaction(&r.reaction, style),
-                })
-                .collect(),
-            skipped: catalogue.skipped.clone(),
-            diagnostics: diagnostics.iter().map(JsonDiagnostic::from).collect(),
-        }),
+        OutputFormat::Json => print_json(&native_json(&host, &catalogue, style, &diagnostics)),
         OutputFormat::Human => (|| {
             let palette = args.color.palette();
             let mut out = io::stdout().lock();

@@ -107,8 +107,6 @@ impl NotationStyle {
     }
 }
 
-pub use crate::report::json::JsonDiagnostic;
-
 /// Writes `value` as pretty JSON and a newline to stdout.
 pub fn print_json<T: serde::Serialize>(value: &T) -> io::Result<()> {
     // Serialise first, so a closed pipe surfaces as an I/O error of its own kind.

@@ -6,8 +6,12 @@
 //! session reaction (`crate::balance`) and offers a unique answer for
 //! `/take`; `/dope OXIDE [SITE]` ranks the incorporation mechanisms in the
 //! session's host (`crate::generate::dope`); `/law [WHICH...]` writes mass-action laws
-//! (`crate::model::law`); `/brouwer [WHICH...]` reads the session as a model file
-//! (`crate::model`, as `/save` would write it) and prints its exact regimes
+//! (`crate::model::laws`, the path `lacuna law` takes, over the session's
+//! reactions and kept model lines given to `crate::model::builder`);
+//! `/brouwer [WHICH...]`
+//! builds a model of the chosen reactions and the kept model lines
+//! (`crate::model::builder`; nothing is written out and read back) and
+//! prints its exact regimes
 //! (`crate::solve::regimes`), ordered along pO2 when K values and a temperature
 //! allow it, else every regime with the plain statement that K values are
 //! needed to order them.
@@ -18,16 +22,21 @@ use crate::balance::Status;
 use crate::balance::checked::check_and_balance;
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::Q;
+use crate::file::reader::{Line as ReaderLine, classify};
 use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
-use crate::model::law::{FactorKind, mass_action_law, write_law_text};
+use crate::model::builder::ModelBuilder;
+use crate::model::law::FactorKind;
+use crate::model::laws::document_laws;
 use crate::model::thermo::temperature_text;
-use crate::model::{self, DataLine, Document, Model, Overrides};
+use crate::model::{Document, Overrides};
 use crate::notation::{Span, Style, parse_reaction, render_reaction};
 use crate::report::balance::write_outcome;
 use crate::report::dope::{TableInput, write_report};
 use crate::report::human::write_diagnostic;
-use crate::solve::regimes::{self, Along, Regime, Sweep};
+use crate::report::law::write_law_text;
+use crate::report::regimes::{Along, regimes_table};
+use crate::solve::regimes::{self, Regime, Sweep};
 use std::io::Write;
 
 /// A diagnostic of an argument's own text (located on line 1 of it) moved
@@ -223,13 +232,6 @@ pub(super) fn dope(
     Ok(())
 }
 
-/// The session read as a model file: the document, and the line of each
-/// entry's reaction in it.
-fn session_document(session: &Session) -> (Document, Vec<u32>) {
-    let (text, lines) = file_text_with_lines(session);
-    (model::read("session", &text, None), lines)
-}
-
 /// Prints a diagnostic of the session document: on an entry's line it is
 /// shown as that reaction's, elsewhere (model lines kept from a loaded file)
 /// as the session's line as `/save` would write it.
@@ -273,72 +275,51 @@ pub(super) fn law(
         writeln!(out, "no reactions yet")?;
         return Ok(());
     }
-    let (doc, lines) = session_document(session);
-    let temperature = doc.temperature.map(|(t, _)| t);
+    // Every reaction with its own host, and the kept model lines (the data).
+    align_spans(session, 0..session.entries.len());
+    let every = |_: usize| true;
+    let (builder, lines, _) = session_builder(session, ModelBuilder::hostless(), &every, true);
+    let doc = builder.document();
+    let laws = document_laws(doc);
     let mut refused = 0;
     for i in chosen {
         let line = lines.get(i).copied().unwrap_or(0);
         let place = format!("reaction {}", i + 1);
-        let Some(r) = doc.reactions.iter().find(|r| r.line == line) else {
+        let Some(r) = laws.reactions.iter().find(|r| r.line == line) else {
             continue;
         };
         let text = doc.line_text(line);
-        if !r.ok {
-            refused += 1;
-            let help = if r.host.is_none() {
-                "set the host with `/host ZrO2`: without it the sites and charges cannot be checked"
-            } else {
-                "`/check` shows the problems; the law of an unbalanced reaction would be wrong"
-            };
-            let d = Diagnostic::new(
-                Code::NoLaw,
-                r.reaction.span.clone(),
-                "no mass-action law is written for a reaction that does not pass its checks",
-            )
-            .with_help(help)
-            .locate(1, text);
-            write_diagnostic(out, session.palette, &place, text, &d)?;
-            continue;
-        }
-        let Ok(law) = mass_action_law(&r.reaction, r.label.as_deref()) else {
-            refused += 1;
-            let d = Diagnostic::new(
-                Code::Number,
-                r.reaction.span.clone(),
-                "the exponents of this law grew beyond the exact range",
-            )
-            .with_help("scale the coefficients down")
-            .locate(1, text);
-            write_diagnostic(out, session.palette, &place, text, &d)?;
-            continue;
-        };
-        let data: Vec<&DataLine> = match &r.label {
-            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
-            None => Vec::new(),
-        };
-        let thermo = match model::resolve_thermo(&data, temperature, r.line) {
-            Ok(t) => t.map(|(t, _)| t),
-            Err((at, d)) => {
-                print_session_diagnostic(
-                    session,
-                    out,
-                    &doc,
-                    &lines,
-                    &d.locate(at, doc.line_text(at)),
-                )?;
-                None
+        let entry = match &r.law {
+            Ok(entry) => entry,
+            Err(d) => {
+                refused += 1;
+                let mut d = d.clone().locate(1, text);
+                if d.code == Code::NoLaw {
+                    // The workbench's way forward: its own commands.
+                    let no_host = doc
+                        .reactions
+                        .iter()
+                        .find(|x| x.line == line)
+                        .is_some_and(|x| x.host.is_none());
+                    d.help = Some(if no_host {
+                        "set the host with `/host ZrO2`: without it the sites and charges cannot be checked"
+                    } else {
+                        "`/check` shows the problems; the law of an unbalanced reaction would be wrong"
+                    }.to_string());
+                }
+                write_diagnostic(out, session.palette, &place, text, &d)?;
+                continue;
             }
         };
-        let host = r
-            .host
-            .and_then(|h| doc.hosts.get(h))
-            .map(|(h, _)| h.formula_text.clone());
+        for d in &r.data_problems {
+            print_session_diagnostic(session, out, doc, &lines, d)?;
+        }
         write_law_text(
             out,
-            &law,
-            thermo.as_ref(),
-            temperature,
-            host.as_deref(),
+            &entry.law,
+            entry.thermo.as_ref(),
+            laws.temperature,
+            entry.host.as_deref(),
             &place,
             Style::Unicode,
         )?;
@@ -363,11 +344,13 @@ pub(super) fn brouwer(
     }
     let chosen = session.select(args, &args.words)?;
     let host = one_host(session, args, &chosen)?;
-    let (mut doc, lines) = session_document(session);
-    let unreadable = keep_only(&mut doc, &lines, &chosen);
-    doc.hosts = vec![(host.clone(), 0)];
-    let overrides = Overrides::for_slopes(&doc);
-    let model = match Model::build(&doc, overrides) {
+    align_spans(session, chosen.iter().copied());
+    let keep = |i: usize| chosen.contains(&i);
+    let (builder, lines, unreadable) =
+        session_builder(session, ModelBuilder::new(host.clone()), &keep, false);
+    let overrides = Overrides::for_slopes(builder.document());
+    let doc = builder.document().clone();
+    let model = match builder.overrides(overrides).build() {
         Ok(m) => m,
         Err(diagnostics) => {
             for d in &diagnostics {
@@ -414,11 +397,7 @@ pub(super) fn brouwer(
         Ok(t) => {
             let regimes = regimes::regimes(&model, Sweep::Po2 { temperature: t }, model.po2_range)
                 .map_err(located)?;
-            write!(
-                out,
-                "{}",
-                regimes::regimes_table(&model, &regimes, Along::Po2)
-            )?;
+            write!(out, "{}", regimes_table(&model, &regimes, Along::Po2))?;
         }
         Err(why) => {
             let regimes: Vec<Regime> = regimes::all_regimes(&model)
@@ -440,11 +419,7 @@ pub(super) fn brouwer(
                 session.problems += 1;
                 return Ok(());
             }
-            write!(
-                out,
-                "{}",
-                regimes::regimes_table(&model, &regimes, Along::Unordered)
-            )?;
+            write!(out, "{}", regimes_table(&model, &regimes, Along::Unordered))?;
             writeln!(
                 out,
                 "note: {why}: these are the exact slopes of every regime the reactions allow; K values are needed to order the regimes along pO₂ and to tell which of them occur"
@@ -579,49 +554,69 @@ fn same_host(session: &Session, chosen: &[usize], host: &Host) -> String {
         .join(" ")
 }
 
-/// Keeps the chosen entries' reactions in the document, with their data
-/// lines and the lines that are not reactions; the other reactions, their
-/// data and their problems are dropped. Lines kept from a loaded file
-/// because they did not parse are no reactions of the session: they are
-/// dropped too, and their number returned so that it can be said.
-fn keep_only(doc: &mut Document, lines: &[u32], chosen: &[usize]) -> usize {
-    let unreadable = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
-        .filter(|n| {
-            !lines.contains(n)
-                && matches!(
-                    crate::file::reader::classify(doc.line_text(*n)),
-                    crate::file::reader::Line::Reaction { .. }
-                )
-        })
-        .count();
-    let kept: Vec<u32> = chosen
-        .iter()
-        .filter_map(|&i| lines.get(i).copied())
-        .collect();
-    let is_other_reaction = |n: u32| {
-        !kept.contains(&n)
-            && matches!(
-                crate::file::reader::classify(doc.line_text(n)),
-                crate::file::reader::Line::Reaction { .. }
-            )
-    };
-    let dropped_labels: Vec<String> = doc
-        .reactions
-        .iter()
-        .filter(|r| !kept.contains(&r.line))
-        .filter_map(|r| r.label.clone())
-        .collect();
-    let mut dropped_lines: Vec<u32> = (1..=u32::try_from(doc.lines.len()).unwrap_or(u32::MAX))
-        .filter(|&n| is_other_reaction(n))
-        .collect();
-    dropped_lines.extend(
-        doc.data
-            .iter()
-            .filter(|d| dropped_labels.contains(&d.label))
-            .map(|d| d.line),
-    );
-    doc.reactions.retain(|r| kept.contains(&r.line));
-    doc.data.retain(|d| !dropped_labels.contains(&d.label));
-    doc.diagnostics.retain(|d| !dropped_lines.contains(&d.line));
-    unreadable
+/// Checks the entries again from their own lines (as `/balance` does), so
+/// that their reactions' spans point into the line `/save` writes; a
+/// reaction loaded from a file points into the file's line, which may be
+/// spaced differently.
+fn align_spans(session: &mut Session, entries: impl Iterator<Item = usize>) {
+    for i in entries {
+        session.recheck(i);
+    }
+}
+
+/// The reactions of the session that `keep` accepts, with the model lines
+/// kept from loaded files, added to `builder`: the reactions go in as they
+/// are held, nothing is written out and read back. With `own_hosts` each
+/// reaction is checked against its own host, else against the builder's.
+/// Items are numbered as `/save` would write the session, so that a
+/// diagnostic names the line the saved file would have. Also returns the
+/// line of each entry and the number of lines of loaded files left out
+/// because they did not read as reactions (they are no reactions of the
+/// session). The data lines of reactions not kept are left out with them.
+fn session_builder(
+    session: &Session,
+    mut builder: ModelBuilder,
+    keep: &dyn Fn(usize) -> bool,
+    own_hosts: bool,
+) -> (ModelBuilder, Vec<u32>, usize) {
+    // The numbering only: the text itself is not read.
+    let (_, lines) = file_text_with_lines(session);
+    builder = builder.source("session");
+    let mut unreadable = 0;
+    let mut dropped_labels = Vec::new();
+    let take =
+        |builder: ModelBuilder, at: u32, text: &str, unreadable: &mut usize| match classify(text) {
+            ReaderLine::Model { .. } => builder.skip_to_line(at).model_line(text),
+            ReaderLine::Reaction { .. } => {
+                *unreadable += 1;
+                builder
+            }
+            _ => builder,
+        };
+    let mut block = 1u32;
+    for (i, entry) in session.entries.iter().enumerate() {
+        for (j, text) in entry.preamble.iter().enumerate() {
+            let at = block.saturating_add(u32::try_from(j).unwrap_or(u32::MAX));
+            builder = take(builder, at, text, &mut unreadable);
+        }
+        let at = lines.get(i).copied().unwrap_or(0);
+        if keep(i) {
+            if own_hosts {
+                builder = builder.host(entry.host.as_ref().map(|slot| slot.host.clone()));
+            }
+            builder = builder.skip_to_line(at).parsed_reaction(
+                entry.label.as_deref(),
+                entry.reaction.clone(),
+                &entry.file_line(),
+            );
+        } else if let Some(label) = &entry.label {
+            dropped_labels.push(label.clone());
+        }
+        block = at.saturating_add(1);
+    }
+    for (j, text) in session.trailer.iter().enumerate() {
+        let at = block.saturating_add(u32::try_from(j).unwrap_or(u32::MAX));
+        builder = take(builder, at, text, &mut unreadable);
+    }
+    (builder.without_data_of(&dropped_labels), lines, unreadable)
 }
