@@ -7,13 +7,14 @@
 use super::{law, thermo};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::Q;
-use crate::check::check_reaction;
-use crate::file::reader::{Line, classify};
+use crate::file::reader::{HostTracker, Line, classify, numbered_lines};
+use crate::file::runner::check_line;
 use crate::host::Host;
 use crate::notation::{
-    Entity, Formula, Reaction, Span, Species, parse_formula, parse_reaction, parse_species_text,
+    Entity, Formula, Reaction, Span, Species, parse_formula, parse_species_text,
 };
 use std::collections::BTreeMap;
+use std::sync::Arc;
 
 /// A reaction line of the file.
 #[derive(Debug, Clone)]
@@ -128,47 +129,52 @@ fn span_of(line: &str, piece: &str) -> Span {
 }
 
 /// Reads a reaction file (or inline text). `default_host` applies until the
-/// first `host` line.
+/// first `host` line. Lines are read by the one file reader, reactions
+/// checked as `check` checks them (plain, Unicode or LaTeX, with the host
+/// over the arrow where no host is in force).
 pub fn read(source: &str, text: &str, default_host: Option<Host>) -> Document {
     let mut doc = Document {
         source: source.to_string(),
         lines: text.lines().map(str::to_string).collect(),
         ..Document::default()
     };
-    if let Some(host) = default_host {
-        doc.hosts.push((host, 0));
+    let mut hosts = HostTracker::new(default_host.map(Arc::new));
+    if let Some(host) = hosts.host() {
+        doc.hosts.push(((**host).clone(), 0));
     }
+    // Index into `doc.hosts` of the host in force.
     let mut current_host = if doc.hosts.is_empty() { None } else { Some(0) };
-    for index in 0..doc.lines.len() {
-        let number = u32::try_from(index + 1).unwrap_or(u32::MAX);
-        let line = doc.lines[index].clone();
-        match classify(&line) {
+    for (number, line) in numbered_lines(text) {
+        match classify(line) {
             Line::Blank | Line::Comment => {}
-            Line::Host(span) => match Host::parse(&line, span) {
-                Ok(host) => {
-                    doc.hosts.push((host, number));
-                    current_host = Some(doc.hosts.len() - 1);
-                }
-                Err(diags) => {
-                    current_host = None;
-                    for d in diags {
-                        doc.push(number, d);
+            Line::Host(span) => {
+                let result = Host::parse(line, span).map(Arc::new);
+                hosts.declare(number, &result);
+                match result {
+                    Ok(host) => {
+                        doc.hosts.push(((*host).clone(), number));
+                        current_host = Some(doc.hosts.len() - 1);
+                    }
+                    Err(diags) => {
+                        current_host = None;
+                        for d in diags {
+                            doc.push(number, d);
+                        }
                     }
                 }
-            },
+            }
             Line::Reaction { label, reaction } => {
-                let (parsed, mut diags) = parse_reaction(&line, reaction);
-                let host = current_host.and_then(|i| doc.hosts.get(i)).map(|(h, _)| h);
-                let mut ok = false;
-                if let Some(r) = &parsed {
-                    let verdict = check_reaction(r, host);
-                    ok = verdict.ok();
-                    diags.extend(verdict.diagnostics);
+                let checked = check_line(line, reaction, &hosts);
+                hosts.follow(&checked.host);
+                if let Some((host, _)) = &checked.host.taken {
+                    doc.hosts.push(((**host).clone(), number));
+                    current_host = Some(doc.hosts.len() - 1);
                 }
-                for d in diags {
+                let ok = checked.verdict.as_ref().is_some_and(|v| v.ok());
+                for d in checked.diagnostics {
                     doc.push(number, d);
                 }
-                if let Some(reaction) = parsed {
+                if let Some(reaction) = checked.reaction {
                     doc.reactions.push(ReactionLine {
                         label: label.clone().map(|l| line[l].to_string()),
                         label_span: label,
@@ -180,7 +186,7 @@ pub fn read(source: &str, text: &str, default_host: Option<Host>) -> Document {
                 }
             }
             Line::Model { keyword, rest } => {
-                read_model_line(&mut doc, number, &line, &line[keyword], rest);
+                read_model_line(&mut doc, number, line, &line[keyword], rest);
             }
         }
     }
