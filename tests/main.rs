@@ -4,6 +4,7 @@
 mod balance;
 mod brouwer;
 mod check_cli;
+mod cross_command;
 mod docs;
 mod dope;
 mod equilibrium_properties;
@@ -15,6 +16,7 @@ mod lint_cli;
 mod model_grammar;
 mod native;
 mod properties;
+mod reader_fixtures;
 mod repl;
 mod support;
 mod typeset;
