@@ -188,3 +188,20 @@ fn invalid_fixtures_give_the_expected_diagnostics() {
         compare(&path, "diagnostics", &got);
     }
 }
+
+#[test]
+fn the_grammar_documents_list_every_arrow_of_the_one_table() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let notation = fs::read_to_string(root.join("grammar/notation.md")).expect("notation.md");
+    let file = fs::read_to_string(root.join("grammar/reaction-file.md")).expect("reaction-file.md");
+    for (spelling, _) in lacuna::notation::ARROWS {
+        assert!(
+            notation.contains(&format!("\"{spelling}\"")),
+            "notation.md's arrow rule lacks {spelling}"
+        );
+        assert!(
+            file.contains(&format!("`{spelling}`")),
+            "reaction-file.md's list of arrows lacks {spelling}"
+        );
+    }
+}
