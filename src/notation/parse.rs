@@ -156,17 +156,26 @@ fn trim_span(src: &str, span: Span) -> Span {
 /// takes the text over it (`\xrightarrow`) includes its optional `[..]`
 /// and `{..}` arguments.
 pub fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
-    // Most characters cannot start an arrow: reject them on the first byte.
-    if !matches!(
-        s.as_bytes().first(),
-        Some(b'\\' | b'<' | b'-' | b'=' | 0xE2)
-    ) {
+    let bytes = s.as_bytes();
+    let first = *bytes.first()?;
+    // Most characters cannot start an arrow: reject them on the first byte,
+    // and the charge marks that share a lead byte with the Unicode arrows
+    // (`•` `′`) on the second.
+    if !matches!(first, b'\\' | b'<' | b'-' | b'=' | 0xE2) {
+        return None;
+    }
+    if first == 0xE2
+        && !bytes
+            .get(1)
+            .is_some_and(|&b| UNICODE_SECOND[usize::from(b)])
+    {
         return None;
     }
     let (spelling, arrow) = ARROWS.iter().find(|(spelling, _)| {
-        s.starts_with(spelling)
-            && !(spelling.starts_with('\\')
-                && s.as_bytes()
+        spelling.as_bytes().first() == Some(&first)
+            && s.starts_with(spelling)
+            && !(first == b'\\'
+                && bytes
                     .get(spelling.len())
                     .is_some_and(u8::is_ascii_alphabetic))
     })?;
@@ -183,6 +192,20 @@ pub fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
     }
     Some((len, *arrow))
 }
+
+/// Second bytes of the arrow spellings that start with the byte 0xE2.
+const UNICODE_SECOND: [bool; 256] = {
+    let mut table = [false; 256];
+    let mut i = 0;
+    while i < ARROWS.len() {
+        let b = ARROWS[i].0.as_bytes();
+        if b.len() > 1 && b[0] == 0xE2 {
+            table[b[1] as usize] = true;
+        }
+        i += 1;
+    }
+    table
+};
 
 /// The first arrow anywhere in `text` (brackets not considered), with its
 /// span and kind.
