@@ -591,6 +591,24 @@ mod tests {
     }
 
     #[test]
+    fn plain_notation_with_text_over_a_latex_arrow() {
+        // source: common practice (Y2O3 dissolving in ZrO2); the condition
+        // under the arrow is not a host and is passed over.
+        let line = r"Y2O3 \xrightarrow[1273 K]{\mathrm{ZrO_2}} 2Y_Zr' + 3O_O + V_O..";
+        let read = read_reaction(line, 0..line.len());
+        assert!(read.reaction.is_some(), "{:?}", read.diagnostics);
+        let (over, span) = read.over_arrow.expect("text over the arrow");
+        assert_eq!(over, "ZrO2");
+        assert_eq!(&line[span], r"\mathrm{ZrO_2}");
+        // A temperature over the arrow is no host: nothing is taken.
+        let line = r"Y2O3 \xrightarrow{1273 K} 2Y_Zr' + 3O_O + V_O..";
+        let read = read_reaction(line, 0..line.len());
+        let tracker: HostTracker = HostTracker::new(None);
+        let chosen = tracker.for_reaction(&read);
+        assert!(chosen.taken.is_none() && chosen.warning.is_none());
+    }
+
+    #[test]
     fn the_tracker_takes_the_host_over_the_arrow_only_when_none_is_in_force() {
         let text = r"\mathrm{Y_2O_3} \xrightarrow{\mathrm{ZrO_2}} 2\mathrm{Y}_{\mathrm{Zr}}^{\prime} + 3\mathrm{O}_{\mathrm{O}}^{\times} + V_{\mathrm{O}}^{\bullet\bullet}";
         let read = read_reaction(text, 0..text.len());
