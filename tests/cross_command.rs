@@ -363,6 +363,18 @@ fn a_potassium_reaction_with_a_unicode_arrow_is_a_reaction() {
         "{}",
         typeset.stderr
     );
+    // `fmt` rewrites it as a reaction (a model line is kept as written).
+    let fmt = lacuna(&["fmt", "--check", &file], None);
+    assert!(
+        fmt.stdout.contains("+K -> K_i. + e'"),
+        "{}{}",
+        fmt.stdout,
+        fmt.stderr
+    );
+    // The workbench takes it as a reaction, not as a model line it refuses.
+    let repl = lacuna(&["repl"], Some("host KCl\nK ⟶ K_i. + e'\n".as_bytes()));
+    assert_eq!(repl.code, 0, "{}{}", repl.stdout, repl.stderr);
+    assert!(repl.stdout.contains("[1] ✓"), "{}", repl.stdout);
 }
 
 #[test]
