@@ -494,10 +494,7 @@ fn cycles(edges: &BTreeSet<(String, String)>) -> Vec<Vec<String>> {
 /// name and is used by them: cycles through that file are tolerated there,
 /// cycles among the children are not. The test fails when one no longer
 /// has such a cycle, so that the list only shrinks.
-const KNOWN_FACADE_CYCLES: &[(&str, &str)] = &[(
-    "src/base/elements/",
-    "the generated table.rs fills types declared in mod.rs, which reads it",
-)];
+const KNOWN_FACADE_CYCLES: &[(&str, &str)] = &[];
 
 const OWN_FILE: &str = "(folder's own file)";
 
@@ -728,11 +725,7 @@ const CLI_SHARED: &[&str] = &["shared", "model_input"];
 /// Front-end imports known to break the rule, each waiting for the library
 /// to offer what it takes from the workbench. The test fails when one is
 /// gone, so that the list only shrinks.
-const KNOWN_CLI_EXCEPTIONS: &[(&str, &str)] = &[
-    // `typeset` takes the reaction reader of the workbench (`analyse`,
-    // `HostSlot`); it moves to the one reaction-file reader of the library.
-    ("app::cli::typeset", "app::workbench"),
-];
+const KNOWN_CLI_EXCEPTIONS: &[(&str, &str)] = &[];
 
 /// The imports of one command's file that reach another command or the
 /// workbench (`repl`, which starts the workbench, excepted).

@@ -8,8 +8,8 @@
 
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number::{self, Q};
-use crate::file::reader::{Line, classify, comment_start};
-use crate::notation::{Arrow, Entity, Reaction, Style, Term, parse_reaction, render_term};
+use crate::file::reader::{Line, classify, comment, numbered_lines, read_reaction};
+use crate::notation::{Arrow, Entity, Reaction, Style, Term, render_term};
 
 /// How `fmt` spells charge marks and arrows.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -36,8 +36,7 @@ enum Piece {
 pub fn format_text(text: &str, marks: MarkSpelling) -> Result<String, Vec<Diagnostic>> {
     let mut pieces = Vec::new();
     let mut errors = Vec::new();
-    for (index, raw) in text.lines().enumerate() {
-        let number = u32::try_from(index + 1).unwrap_or(u32::MAX);
+    for (number, raw) in numbered_lines(text) {
         match format_line(raw, marks) {
             Ok(piece) => pieces.push(piece),
             Err(diagnostics) => {
@@ -52,7 +51,7 @@ pub fn format_text(text: &str, marks: MarkSpelling) -> Result<String, Vec<Diagno
 }
 
 fn comment_of(raw: &str) -> Option<String> {
-    comment_start(raw).map(|at| raw[at..].trim_end().to_string())
+    comment(raw).map(str::to_string)
 }
 
 fn format_line(raw: &str, marks: MarkSpelling) -> Result<Piece, Vec<Diagnostic>> {
@@ -74,15 +73,24 @@ fn format_line(raw: &str, marks: MarkSpelling) -> Result<Piece, Vec<Diagnostic>>
             )))
         }
         Line::Reaction { label, reaction } => {
-            let (parsed, diagnostics) = parse_reaction(raw, reaction);
-            let Some(parsed) = parsed.filter(|_| !diagnostics.iter().any(Diagnostic::is_error))
+            let read = read_reaction(raw, reaction);
+            let Some(parsed) = read
+                .reaction
+                .as_ref()
+                .filter(|_| !read.diagnostics.iter().any(Diagnostic::is_error))
             else {
-                return Err(diagnostics
+                return Err(read
+                    .diagnostics
                     .into_iter()
                     .filter(Diagnostic::is_error)
                     .collect());
             };
-            let (left, arrow, right) = render_sides(raw, &parsed, marks);
+            // LaTeX, and a host written over the arrow, have no plain
+            // spelling that keeps everything they say: kept as written.
+            if read.from_latex() || read.over_arrow.is_some() {
+                return Ok(Piece::Verbatim(raw.trim().to_string()));
+            }
+            let (left, arrow, right) = render_sides(raw, parsed, marks);
             Ok(Piece::Reaction {
                 label: label.map(|l| raw[l].to_string()),
                 left,
@@ -249,6 +257,24 @@ mod tests {
         let got = format_text("Ba(OH)2 + V_O.. -> 2OH_O. + BaO\n", MarkSpelling::Unicode)
             .expect("formats");
         assert_eq!(got, "Ba(OH)2 + V_O•• → 2 OH_O• + BaO\n");
+    }
+
+    #[test]
+    fn latex_reactions_are_read_and_kept_as_written() {
+        // source: IUPAC, Nomenclature of Inorganic Chemistry (Recommendations
+        // 2005), IR-11.4 (italic V for the vacancy, bullets and primes).
+        let input = "host ZrO2\n  r: \\mathrm{O}_{\\mathrm{O}}^{\\times} \\rightarrow V_{\\mathrm{O}}^{\\bullet\\bullet} + 2e^{\\prime} + \\tfrac{1}{2}\\mathrm{O_2(g)}  \nband: nil->e'+h.\n";
+        let got = format_text(input, MarkSpelling::Ascii).expect("formats");
+        assert_eq!(
+            got,
+            "host ZrO2\nr: \\mathrm{O}_{\\mathrm{O}}^{\\times} \\rightarrow V_{\\mathrm{O}}^{\\bullet\\bullet} + 2e^{\\prime} + \\tfrac{1}{2}\\mathrm{O_2(g)}\nband: nil -> e' + h.\n"
+        );
+        let errors = format_text(
+            "\\mathrm{O}_{\\mathcal{O}} \\rightarrow V\n",
+            MarkSpelling::Ascii,
+        )
+        .expect_err("unknown command");
+        assert_eq!(errors[0].line, 1);
     }
 
     #[test]

@@ -13,10 +13,9 @@ use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::Verdict;
 use crate::check::rules::{FileLints, Levels, ReactionFacts};
-use crate::file::reader::{Line, classify};
+use crate::file::reader::{HostHandle, HostTracker, Line, ReactionHost, classify, read_reaction};
 use crate::host::Host;
-use crate::notation::latex_input::{Normalised, looks_like_latex, normalise};
-use crate::notation::{Reaction, Span, parse_reaction};
+use crate::notation::{Reaction, Span};
 use std::io::{self, BufRead};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -107,7 +106,7 @@ pub struct Checker<'s> {
 
 /// State that lives for one source: the host in force and the cross-line rules.
 struct SourceState {
-    hosts: HostState,
+    hosts: HostTracker,
     lints: FileLints,
     /// What reported lines leave behind, to be dropped later (elsewhere).
     leftovers: Vec<Leftover>,
@@ -119,35 +118,9 @@ type Leftover = (Option<Reaction>, Option<Verdict>, Vec<Diagnostic>);
 impl SourceState {
     fn new(default_host: Option<Arc<Host>>) -> SourceState {
         SourceState {
-            hosts: HostState {
-                host: default_host,
-                broken_host_line: None,
-            },
+            hosts: HostTracker::new(default_host),
             lints: FileLints::default(),
             leftovers: Vec::new(),
-        }
-    }
-}
-
-/// The host in force at a line, as the `host` lines above it left it.
-#[derive(Clone)]
-struct HostState {
-    host: Option<Arc<Host>>,
-    /// The line of a `host` declaration that failed, so later reactions say why they have no host.
-    broken_host_line: Option<u32>,
-}
-
-impl HostState {
-    fn declare(&mut self, line: u32, result: &Result<Arc<Host>, Vec<Diagnostic>>) {
-        match result {
-            Ok(host) => {
-                self.host = Some(host.clone());
-                self.broken_host_line = None;
-            }
-            Err(_) => {
-                self.host = None;
-                self.broken_host_line = Some(line);
-            }
         }
     }
 }
@@ -169,14 +142,84 @@ enum Prepared {
 struct PreparedReaction {
     label: Option<Span>,
     reaction: Span,
-    parsed: Option<Reaction>,
-    /// Parse and check diagnostics, not yet located.
-    diagnostics: Vec<Diagnostic>,
-    verdict: Option<Verdict>,
-    /// The plain notation read from LaTeX, when the line was LaTeX.
-    latex: Option<Normalised>,
+    checked: CheckedReaction,
     /// What the cross-line rules need, when the reaction parsed.
     facts: Option<ReactionFacts>,
+}
+
+/// A reaction line read and checked against the host in force: the one
+/// path from a reaction's text to its verdict, for `check`, the model
+/// reader, `typeset` and the workbench.
+#[derive(Debug)]
+pub struct CheckedReaction<H = Arc<Host>> {
+    /// The reaction, when it parsed; its spans are byte ranges of the line.
+    pub reaction: Option<Reaction>,
+    /// Whether it was read from LaTeX.
+    pub from_latex: bool,
+    /// What the text over the arrow did to the host (`HostTracker::host_for`
+    /// gives the host it was checked against).
+    pub host: ReactionHost<H>,
+    /// The checker's verdict; `None` when the reaction did not parse.
+    pub verdict: Option<Verdict>,
+    /// Reading and checking problems, spans in the line, not yet located.
+    pub diagnostics: Vec<Diagnostic>,
+}
+
+impl<H> CheckedReaction<H> {
+    /// False when a balance fails or any error was reported.
+    pub fn ok(&self) -> bool {
+        self.verdict.as_ref().is_some_and(Verdict::ok)
+            && !self.diagnostics.iter().any(Diagnostic::is_error)
+    }
+}
+
+/// Reads the reaction at `span` of `line` (plain, Unicode or LaTeX) and
+/// checks it against the host `hosts` has in force (or the one over its
+/// arrow when none is). The tracker is not changed: call
+/// `hosts.follow(&checked.host)` to keep a host taken from over the arrow.
+pub fn check_line<H: HostHandle>(
+    line: &str,
+    span: Span,
+    hosts: &HostTracker<H>,
+) -> CheckedReaction<H> {
+    let read = read_reaction(line, span);
+    let chosen = hosts.for_reaction(&read);
+    let from_latex = read.from_latex();
+    let mut diagnostics = read.diagnostics;
+    diagnostics.extend(chosen.warning.iter().cloned());
+    let verdict = read
+        .reaction
+        .as_ref()
+        .map(|r| check_with_hint(r, hosts.host_for(&chosen).map(H::host)));
+    if let Some(v) = &verdict {
+        for d in &v.diagnostics {
+            if d.code == Code::NoHost {
+                if let Some(line) = hosts.broken_line() {
+                    diagnostics.push(
+                        Diagnostic::new(
+                            Code::NoHost,
+                            d.span.clone(),
+                            format!(
+                                "no usable host: the host declaration on line {line} has errors"
+                            ),
+                        )
+                        .with_help(
+                            "fix that line; sites and effective charges are checked against it",
+                        ),
+                    );
+                    continue;
+                }
+            }
+            diagnostics.push(d.clone());
+        }
+    }
+    CheckedReaction {
+        reaction: read.reaction,
+        from_latex,
+        host: chosen,
+        verdict,
+        diagnostics,
+    }
 }
 
 /// The reaction name a `K`, `dH` or `dS` model line refers to.
@@ -200,7 +243,7 @@ fn line_content(buffer: &[u8]) -> &[u8] {
 }
 
 /// Classifies, parses and checks one line against the host in force.
-fn prepare_line(number: u32, bytes: &[u8], hosts: &HostState) -> Prepared {
+fn prepare_line(number: u32, bytes: &[u8], hosts: &HostTracker) -> Prepared {
     let text = match std::str::from_utf8(bytes) {
         Ok(text) => text,
         Err(e) => {
@@ -225,56 +268,29 @@ fn prepare_line(number: u32, bytes: &[u8], hosts: &HostState) -> Prepared {
         Line::Model { keyword, rest } => Prepared::Model(model_reference(text, keyword, rest)),
         Line::Host(span) => Prepared::Host(Host::parse(text, span).map(Arc::new)),
         Line::Reaction { label, reaction } => {
-            // LaTeX pasted from a manuscript is rewritten as plain notation
-            // first, unless the parser reads it as it is.
-            let (mut parsed, mut diagnostics) = parse_reaction(text, reaction.clone());
-            let mut latex = None;
-            let latex_source = text.get(reaction.clone()).unwrap_or("");
-            if parsed.is_none() && looks_like_latex(latex_source) {
-                match normalise(latex_source) {
-                    Ok(n) => {
-                        let (p, d) = parse_reaction(&n.text, 0..n.text.len());
-                        parsed = p;
-                        diagnostics = d;
-                        diagnostics.extend(n.notes.iter().cloned());
-                        latex = Some(n);
-                    }
-                    Err(d) => diagnostics = vec![relocate_by(d, reaction.start)],
-                }
-            }
-            let verdict = parsed
-                .as_ref()
-                .map(|r| check_with_hint(r, hosts.host.as_deref()));
-            if let Some(v) = &verdict {
-                for d in &v.diagnostics {
-                    if d.code == Code::NoHost {
-                        if let Some(line) = hosts.broken_host_line {
-                            diagnostics.push(
-                                Diagnostic::new(Code::NoHost, d.span.clone(), format!("no usable host: the host declaration on line {line} has errors"))
-                                    .with_help("fix that line; sites and effective charges are checked against it"),
-                            );
-                            continue;
-                        }
-                    }
-                    diagnostics.push(d.clone());
-                }
-            }
-            let facts = parsed.as_ref().map(|r| {
+            let checked = check_line(text, reaction.clone(), hosts);
+            let facts = checked.reaction.as_ref().map(|r| {
                 let named = label
                     .clone()
                     .map(|l| (text.get(l.clone()).unwrap_or(""), l));
-                ReactionFacts::of(named, r, hosts.host.as_deref())
+                ReactionFacts::of(named, r, hosts.host_for(&checked.host).map(|h| &**h))
             });
             Prepared::Reaction(Box::new(PreparedReaction {
                 label,
                 reaction,
-                parsed,
-                diagnostics,
-                verdict,
-                latex,
+                checked,
                 facts,
             }))
         }
+    }
+}
+
+/// Keeps what a prepared line changed about the host in force.
+fn follow(hosts: &mut HostTracker, number: u32, prepared: &Prepared) {
+    match prepared {
+        Prepared::Host(result) => hosts.declare(number, result),
+        Prepared::Reaction(r) => hosts.follow(&r.checked.host),
+        _ => {}
     }
 }
 
@@ -324,22 +340,36 @@ impl Chunk {
     /// Finds the chunk's `host` lines (rare; in order, on one thread) so
     /// that every other line can then be prepared on any thread against the
     /// host in force at it. `hosts` is the state before the first line.
-    fn plan(self, mut hosts: HostState) -> ChunkPlan {
+    fn plan(self, mut hosts: HostTracker) -> ChunkPlan {
         let mut declared: Vec<(usize, Prepared)> = Vec::new();
-        let mut segments: Vec<(usize, HostState)> = vec![(0, hosts.clone())];
+        let mut segments: Vec<(usize, HostTracker)> = vec![(0, hosts.clone())];
         for (index, (number, range)) in self.lines().enumerate() {
             let bytes = self.bytes.get(range).unwrap_or_default();
-            if !may_be_host_line(bytes) {
+            // Only `host` lines, and while no host is in force a reaction
+            // with one over its arrow, change the host in force.
+            let over_arrow = hosts.host().is_none() && may_set_text_over_arrow(bytes);
+            if !over_arrow && !may_be_host_line(bytes) {
                 continue;
             }
             let Ok(text) = std::str::from_utf8(bytes) else {
                 continue;
             };
-            if let Line::Host(span) = classify(text) {
-                let result = Host::parse(text, span).map(Arc::new);
-                hosts.declare(number, &result);
-                segments.push((index + 1, hosts.clone()));
-                declared.push((index, Prepared::Host(result)));
+            match classify(text) {
+                Line::Host(span) => {
+                    let result = Host::parse(text, span).map(Arc::new);
+                    hosts.declare(number, &result);
+                    segments.push((index + 1, hosts.clone()));
+                    declared.push((index, Prepared::Host(result)));
+                }
+                Line::Reaction { reaction, .. } if over_arrow => {
+                    let chosen = hosts.for_reaction(&read_reaction(text, reaction));
+                    if chosen.taken.is_some() {
+                        // The line itself is prepared with the state before it.
+                        hosts.follow(&chosen);
+                        segments.push((index + 1, hosts.clone()));
+                    }
+                }
+                _ => {}
             }
         }
         ChunkPlan {
@@ -361,8 +391,8 @@ struct ChunkPlan {
     /// (index, prepared) of the chunk's host lines, by increasing index.
     declared: Vec<(usize, Prepared)>,
     /// (first index, host in force from there on), by increasing index.
-    segments: Vec<(usize, HostState)>,
-    hosts_after: HostState,
+    segments: Vec<(usize, HostTracker)>,
+    hosts_after: HostTracker,
     /// The next block of lines no thread has claimed.
     next_block: AtomicUsize,
 }
@@ -449,6 +479,15 @@ fn may_be_host_line(bytes: &[u8]) -> bool {
     }
 }
 
+/// Whether a line could set text over its arrow (cheap; false only when
+/// it certainly does not): `\xrightarrow` and its kin, `\overset`, `\stackrel`.
+fn may_set_text_over_arrow(bytes: &[u8]) -> bool {
+    bytes.contains(&b'\\')
+        && (bytes.windows(2).any(|w| w == b"\\x")
+            || bytes.windows(8).any(|w| w == b"\\overset")
+            || bytes.windows(9).any(|w| w == b"\\stackrel"))
+}
+
 /// A chunk with every line prepared, and the host in force after it.
 struct PreparedChunk {
     chunk: Chunk,
@@ -456,7 +495,7 @@ struct PreparedChunk {
     /// Which thread prepared each block of lines: 0 the reporting thread,
     /// h + 1 helper h.
     owners: Vec<usize>,
-    hosts_after: HostState,
+    hosts_after: HostTracker,
 }
 
 /// Work for a helper thread: a chunk to prepare, and memory it allocated
@@ -505,9 +544,7 @@ impl<'s> Checker<'s> {
             number = number.saturating_add(1);
             let bytes = line_content(&buffer);
             let prepared = prepare_line(number, bytes, &state.hosts);
-            if let Prepared::Host(result) = &prepared {
-                state.hosts.declare(number, result);
-            }
+            follow(&mut state.hosts, number, &prepared);
             self.finish_line(name, number, bytes, prepared, &mut state)?;
             state.leftovers.clear();
         }
@@ -642,9 +679,7 @@ impl<'s> Checker<'s> {
         } = chunk;
         for (index, ((number, range), prepared)) in chunk.lines().zip(lines).enumerate() {
             let bytes = chunk.bytes.get(range).unwrap_or_default();
-            if let Prepared::Host(result) = &prepared {
-                state.hosts.declare(number, result);
-            }
+            follow(&mut state.hosts, number, &prepared);
             self.finish_line(name, number, bytes, prepared, state)?;
             let owner = owners.get(index / BLOCK_LINES).copied().unwrap_or(0);
             if let Some(helper) = owner.checked_sub(1).and_then(|h| crew.get_mut(h)) {
@@ -705,28 +740,24 @@ impl<'s> Checker<'s> {
                 let PreparedReaction {
                     label,
                     reaction,
-                    parsed,
-                    mut diagnostics,
-                    verdict,
-                    latex,
+                    checked,
                     facts,
                 } = *prepared;
-                let host = state.hosts.host.clone();
+                let CheckedReaction {
+                    reaction: parsed,
+                    host: chosen,
+                    verdict,
+                    mut diagnostics,
+                    ..
+                } = checked;
+                // The host in force was updated for this line already.
+                let host = chosen
+                    .taken
+                    .map(|(host, _)| host)
+                    .or_else(|| state.hosts.host().cloned());
                 if let Some(facts) = facts {
                     let name = label.clone().and_then(|l| text.get(l));
                     diagnostics.extend(state.lints.apply(number, name, facts));
-                }
-                if let Some(n) = &latex {
-                    diagnostics = diagnostics
-                        .into_iter()
-                        .map(|d| {
-                            if d.code == Code::DuplicateLabel {
-                                d
-                            } else {
-                                n.relocate(d, reaction.start)
-                            }
-                        })
-                        .collect();
                 }
                 let mut diagnostics: Vec<Diagnostic> = diagnostics
                     .into_iter()
@@ -781,11 +812,6 @@ impl<'s> Checker<'s> {
         self.sink.finish(&self.summary)?;
         Ok(self.summary)
     }
-}
-
-fn relocate_by(mut d: Diagnostic, offset: usize) -> Diagnostic {
-    d.span = d.span.start + offset..d.span.end + offset;
-    d
 }
 
 /// A reaction report that owns its data, for checking files on other threads
@@ -939,6 +965,8 @@ mod tests {
             "Y2O3 -> 2Y_Zr' + 3O_O + V_O.",
             "Nb2O5 -> 2Nb_Ti. + 4O_O + 2e' + 1/2 O2(g)",
             r"\mathrm{Y_2O_3} \rightarrow 2\,\mathrm{Y}_{\mathrm{Zr}}^{\prime} + 3\,\mathrm{O}_{\mathrm{O}}^{\times} + V_{\mathrm{O}}^{\bullet\bullet}",
+            r"\mathrm{Y_2O_3} \xrightarrow{\mathrm{CeO_2}} 2\,\mathrm{Y}_{\mathrm{Ce}}^{\prime} + 3\,\mathrm{O}_{\mathrm{O}}^{\times} + V_{\mathrm{O}}^{\bullet\bullet}",
+            r"Y2O3 \overset{\mathrm{ZrO_2}}{\longrightarrow} 2Y_Zr' + 3O_O + V_O..",
             "nil -> e' + h.",
             "O_O -> V_O +",
         ];
@@ -947,6 +975,9 @@ mod tests {
             "host TiO2",
             "host Zr2",
             "  host CeO2 # comment",
+            // Magnetite needs its sites stated: no host after it, so the
+            // host over an arrow below is taken.
+            "host Fe3O4",
         ];
         let mut text: Vec<u8> = Vec::new();
         let lines = 2 * CHUNK_LINES + 700;
@@ -984,9 +1015,9 @@ mod tests {
         /// reports what the line-by-line one does.
         #[test]
         fn chunked_and_line_by_line_agree_on_any_file(
-            picks in proptest::collection::vec((0usize..14, proptest::prelude::any::<u8>()), 0..900)
+            picks in proptest::collection::vec((0usize..16, proptest::prelude::any::<u8>()), 0..900)
         ) {
-            const PIECES: [&[u8]; 14] = [
+            const PIECES: [&[u8]; 16] = [
                 b"host ZrO2",
                 b"host TiO2",
                 b"host Q9",
@@ -1001,6 +1032,8 @@ mod tests {
                 b"# comment",
                 b"O_O -> (",
                 b"\xe2\x86",
+                br"Y2O3 \xrightarrow{ZrO2} 2Y_Zr' + 3O_O + V_O..",
+                br"Y2O3 \stackrel{\mathrm{CeO_2}}{\rightarrow} 2Y_Ce' + 3O_O + V_O..",
             ];
             let mut text = Vec::new();
             for (piece, byte) in &picks {

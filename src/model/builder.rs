@@ -12,9 +12,9 @@ use crate::check::check_reaction;
 use crate::file::reader::{Line, classify};
 use crate::host::Host;
 use crate::model::law::factor_of;
+use crate::model::read::read_model_line;
 use crate::model::{
     Basis, DataLine, Datum, Document, FixLine, Model, Overrides, PressureLine, ReactionLine,
-    read_model_line,
 };
 use crate::notation::{Compound, Entity, Phase, Reaction, Span, parse_formula, parse_reaction};
 use crate::notation::{parse_species_text, render_reaction};

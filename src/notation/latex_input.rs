@@ -10,7 +10,7 @@
 //! it does not know are errors with their column, never guesses.
 //! Grammar and the list of commands: grammar/repl.md, "LaTeX input".
 
-use super::Span;
+use super::{ARROWS, Arrow, Span, takes_text_over};
 use crate::base::diagnostic::{Code, Diagnostic};
 
 /// Plain notation made from LaTeX, with a map back to the LaTeX.
@@ -106,15 +106,6 @@ const FONT_COMMANDS: &[&str] = &[
 ];
 /// Font commands that set upright type (IUPAC: upright V is vanadium).
 const UPRIGHT_COMMANDS: &[&str] = &["mathrm", "text", "textrm", "mathup"];
-const FORWARD_ARROWS: &[&str] = &["longrightarrow", "rightarrow", "to", "Longrightarrow"];
-const EQUILIBRIUM_ARROWS: &[&str] = &[
-    "rightleftharpoons",
-    "leftrightharpoons",
-    "rightleftarrows",
-    "leftrightarrows",
-    "leftrightarrow",
-    "longleftrightarrow",
-];
 const SPACES: &[&str] = &[",", ";", ":", " ", "quad", "qquad", "enspace", "thinspace"];
 /// Commands that only lay out an equation; dropped with their argument.
 const LAYOUT_WITH_ARGUMENT: &[&str] = &["label", "tag"];
@@ -137,6 +128,22 @@ const ENVIRONMENTS: &[&str] = &[
 
 /// The commands the reader knows, for the help of an unknown one.
 const KNOWN_HELP: &str = "known here: \\mathrm \\mathit \\text \\frac \\tfrac \\bullet \\prime \\times \\cdot \\, \\; \\longrightarrow \\rightarrow \\rightleftharpoons \\xrightarrow \\overset \\varnothing \\square \\{ \\} \\left \\right \\label; see grammar/repl.md";
+
+/// The plain arrow a LaTeX command spells (`rightarrow` → `->`), from the
+/// one arrow table, and whether the command takes the text over the arrow.
+fn arrow_command(name: &str) -> Option<(&'static str, bool)> {
+    ARROWS
+        .iter()
+        .find(|(spelling, _)| spelling.strip_prefix('\\') == Some(name))
+        .map(|(spelling, arrow)| {
+            let plain = match arrow {
+                Arrow::Forward => "->",
+                Arrow::Equilibrium => "<=>",
+                Arrow::Equals => "=",
+            };
+            (plain, takes_text_over(spelling))
+        })
+}
 
 struct Reader<'a> {
     src: &'a str,
@@ -584,21 +591,18 @@ impl Reader<'_> {
                 // `\left.` is an invisible delimiter.
                 Ok(if self.char_at(n) == Some('.') { n + 1 } else { n })
             }
-            n if FORWARD_ARROWS.contains(&n) => {
-                self.emit_spaced("->", here);
-                Ok(after_spaces(self, next))
-            }
-            n if EQUILIBRIUM_ARROWS.contains(&n) => {
-                self.emit_spaced("<=>", here);
-                Ok(after_spaces(self, next))
-            }
-            "xrightarrow" | "xrightleftharpoons" | "xleftrightharpoons" => {
-                next = self.skip_optional(next, end)?;
-                let (over, after) = self.argument(next, end, here.clone())?;
-                self.note_over_arrow(over);
-                let arrow = if name == "xrightarrow" { "->" } else { "<=>" };
-                self.emit_spaced(arrow, at..after);
-                Ok(after)
+            n if arrow_command(n).is_some() => {
+                let (arrow, over) = arrow_command(n).unwrap_or(("->", false));
+                if over {
+                    next = self.skip_optional(next, end)?;
+                    let (over, after) = self.argument(next, end, here.clone())?;
+                    self.note_over_arrow(over);
+                    self.emit_spaced(arrow, at..after);
+                    Ok(after)
+                } else {
+                    self.emit_spaced(arrow, here);
+                    Ok(after_spaces(self, next))
+                }
             }
             "overset" | "stackrel" => {
                 let (over, after) = self.argument(next, end, here.clone())?;

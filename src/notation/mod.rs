@@ -9,7 +9,10 @@ pub mod latex_input;
 mod parse;
 mod render;
 
-pub use parse::{parse_formula, parse_reaction, parse_species_text, quoted};
+pub use parse::{
+    ARROWS, arrow_at, find_arrow, parse_formula, parse_reaction, parse_species_text, quoted,
+    takes_text_over,
+};
 pub use render::{
     Style, escape_html, render_formula, render_reaction, render_reaction_over, render_species,
     render_term,

@@ -101,12 +101,27 @@ pub fn quoted(text: &str) -> String {
     out
 }
 
-/// Arrow spellings, longest first where one is a prefix of another.
-const ARROWS: &[(&str, Arrow)] = &[
+/// Every arrow spelling Lacuna reads, longest first where one is a prefix of
+/// another: plain, Unicode and LaTeX. The one table: the parser reads these,
+/// the file reader tells reactions from model lines with them, the LaTeX
+/// reader rewrites the commands among them (`\to` becomes `->`), and the
+/// workbench paints them. A LaTeX command matches only as a whole command
+/// name (`\to`, never the start of `\top`). Spellings starting with `\x`
+/// take an optional `[..]` and a `{..}` argument: the text set over the arrow.
+pub const ARROWS: &[(&str, Arrow)] = &[
+    ("\\xrightleftharpoons", Arrow::Equilibrium),
+    ("\\xleftrightharpoons", Arrow::Equilibrium),
+    ("\\xrightarrow", Arrow::Forward),
     ("\\rightleftharpoons", Arrow::Equilibrium),
     ("\\leftrightharpoons", Arrow::Equilibrium),
+    ("\\longleftrightarrow", Arrow::Equilibrium),
+    ("\\rightleftarrows", Arrow::Equilibrium),
+    ("\\leftrightarrows", Arrow::Equilibrium),
+    ("\\leftrightarrow", Arrow::Equilibrium),
     ("\\longrightarrow", Arrow::Forward),
+    ("\\Longrightarrow", Arrow::Forward),
     ("\\rightarrow", Arrow::Forward),
+    ("\\to", Arrow::Forward),
     ("<=>", Arrow::Equilibrium),
     ("<->", Arrow::Equilibrium),
     ("-->", Arrow::Forward),
@@ -117,6 +132,11 @@ const ARROWS: &[(&str, Arrow)] = &[
     ("⇄", Arrow::Equilibrium),
     ("=", Arrow::Equals),
 ];
+
+/// Whether an arrow spelling takes the text over the arrow as an argument.
+pub fn takes_text_over(spelling: &str) -> bool {
+    spelling.starts_with("\\x")
+}
 
 const NIL_SPELLINGS: &[&str] = &["nil", "null", "0", "∅", "Ø", "\\emptyset", "\\varnothing"];
 
@@ -132,19 +152,36 @@ fn trim_span(src: &str, span: Span) -> Span {
     start..end.max(start)
 }
 
-/// Finds an arrow at the start of `s`: its length and kind. `\xrightarrow`
-/// takes an optional `[..]` and a `{..}` argument (the host over the arrow).
-fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
-    // Most characters cannot start an arrow: reject them on the first byte.
-    if !matches!(
-        s.as_bytes().first(),
-        Some(b'\\' | b'<' | b'-' | b'=' | 0xE2)
-    ) {
+/// Finds an arrow at the start of `s`: its length and kind. An arrow that
+/// takes the text over it (`\xrightarrow`) includes its optional `[..]`
+/// and `{..}` arguments.
+pub fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
+    let bytes = s.as_bytes();
+    let first = *bytes.first()?;
+    // Most characters cannot start an arrow: reject them on the first byte,
+    // and the charge marks that share a lead byte with the Unicode arrows
+    // (`•` `′`) on the second.
+    if !matches!(first, b'\\' | b'<' | b'-' | b'=' | 0xE2) {
         return None;
     }
-    if let Some(rest) = s.strip_prefix("\\xrightarrow") {
-        let mut len = "\\xrightarrow".len();
-        let mut rest = rest;
+    if first == 0xE2
+        && !bytes
+            .get(1)
+            .is_some_and(|&b| UNICODE_SECOND[usize::from(b)])
+    {
+        return None;
+    }
+    let (spelling, arrow) = ARROWS.iter().find(|(spelling, _)| {
+        spelling.as_bytes().first() == Some(&first)
+            && s.starts_with(spelling)
+            && !(first == b'\\'
+                && bytes
+                    .get(spelling.len())
+                    .is_some_and(u8::is_ascii_alphabetic))
+    })?;
+    let mut len = spelling.len();
+    if takes_text_over(spelling) {
+        let mut rest = &s[len..];
         for (open, close) in [('[', ']'), ('{', '}')] {
             if rest.starts_with(open) {
                 let end = rest.find(close)?;
@@ -152,12 +189,29 @@ fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
                 rest = &rest[end + 1..];
             }
         }
-        return Some((len, Arrow::Forward));
     }
-    ARROWS
-        .iter()
-        .find(|(spelling, _)| s.starts_with(spelling))
-        .map(|(sp, a)| (sp.len(), *a))
+    Some((len, *arrow))
+}
+
+/// Second bytes of the arrow spellings that start with the byte 0xE2.
+const UNICODE_SECOND: [bool; 256] = {
+    let mut table = [false; 256];
+    let mut i = 0;
+    while i < ARROWS.len() {
+        let b = ARROWS[i].0.as_bytes();
+        if b.len() > 1 && b[0] == 0xE2 {
+            table[b[1] as usize] = true;
+        }
+        i += 1;
+    }
+    table
+};
+
+/// The first arrow anywhere in `text` (brackets not considered), with its
+/// span and kind.
+pub fn find_arrow(text: &str) -> Option<(Span, Arrow)> {
+    text.char_indices()
+        .find_map(|(i, _)| arrow_at(&text[i..]).map(|(len, arrow)| (i..i + len, arrow)))
 }
 
 fn closing(open: char) -> char {

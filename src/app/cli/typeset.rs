@@ -4,10 +4,10 @@
 //! problems on stderr, but always writes what the input says.
 
 use super::shared::{ColorChoice, fail, host_argument};
-use crate::app::workbench::{HostSlot, analyse};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::check::Verdict;
-use crate::file::reader::{self, Line};
+use crate::file::reader::{self, HostTracker, Line, numbered_lines};
+use crate::file::runner::check_line;
 use crate::host::Host;
 use crate::notation::latex_input::{self, looks_like_latex};
 use crate::notation::parse_species_text;
@@ -18,7 +18,7 @@ use clap::{Args, ValueEnum};
 use std::io::{self, IsTerminal, Read, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use std::rc::Rc;
+use std::sync::Arc;
 
 /// Output forms of `typeset`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -109,7 +109,8 @@ impl Run<'_> {
         let _ = write_diagnostic(&mut io::stderr(), self.palette, source, line, &d);
     }
 
-    /// Typesets the reaction at `span` of `line`.
+    /// Typesets the reaction at `span` of `line`, checked against the host
+    /// `hosts` has in force (or the one over its arrow), as `check` does.
     fn reaction(
         &mut self,
         source: &str,
@@ -117,23 +118,24 @@ impl Run<'_> {
         number: u32,
         label: Option<&str>,
         span: std::ops::Range<usize>,
-        host: Option<&Rc<HostSlot>>,
+        hosts: &mut HostTracker,
     ) -> io::Result<()> {
-        let analysis = analyse(line, span, host);
-        let Some(reaction) = &analysis.reaction else {
+        let checked = check_line(line, span, hosts);
+        hosts.follow(&checked.host);
+        let Some(reaction) = &checked.reaction else {
             self.problems += 1;
-            for d in &analysis.diagnostics {
+            for d in &checked.diagnostics {
                 self.report(source, line, number, d);
             }
             return Ok(());
         };
         if !self.args.no_check {
-            let failed = !analysis.verdict.as_ref().is_some_and(|v: &Verdict| {
+            let failed = !checked.verdict.as_ref().is_some_and(|v: &Verdict| {
                 let b = v.balance;
                 b.mass && b.charge && b.site != Some(false)
             });
             let mut shown = false;
-            for d in &analysis.diagnostics {
+            for d in &checked.diagnostics {
                 if d.code == Code::NoHost {
                     self.unchecked_sites = true;
                     continue;
@@ -148,46 +150,33 @@ impl Run<'_> {
                 self.problems += 1;
             }
         }
-        let effective = analysis.host_from_arrow.as_ref().or(host);
         let over = typeset::host_over_arrow(
             reaction,
-            effective.map(|h| &h.host),
+            hosts.host().map(|h| &**h),
             self.args.host_over_arrow.policy(),
         );
         let body = typeset::reaction(reaction, self.form, over);
         writeln!(self.out, "{}", typeset::line(label, &body, self.form))
     }
 
-    fn file(
-        &mut self,
-        name: &str,
-        text: &str,
-        default_host: Option<&Rc<HostSlot>>,
-    ) -> io::Result<()> {
-        let mut host = default_host.cloned();
-        for (index, line) in text.lines().enumerate() {
-            let number = u32::try_from(index + 1).unwrap_or(u32::MAX);
+    fn file(&mut self, name: &str, text: &str, default_host: Option<&Arc<Host>>) -> io::Result<()> {
+        let mut hosts = HostTracker::new(default_host.cloned());
+        for (number, line) in numbered_lines(text) {
             match reader::classify(line) {
                 Line::Blank | Line::Comment | Line::Model { .. } => {}
-                Line::Host(span) => match Host::parse(line, span.clone()) {
-                    Ok(parsed) => {
-                        host = Some(Rc::new(HostSlot {
-                            spec: line[span].trim().to_string(),
-                            host: parsed,
-                            line: line.to_string(),
-                        }));
-                    }
-                    Err(diagnostics) => {
+                Line::Host(span) => {
+                    let result = Host::parse(line, span).map(Arc::new);
+                    hosts.declare(number, &result);
+                    if let Err(diagnostics) = result {
                         self.problems += 1;
-                        host = None;
                         for d in &diagnostics {
                             self.report(name, line, number, d);
                         }
                     }
-                },
+                }
                 Line::Reaction { label, reaction } => {
                     let label = label.map(|l| &line[l]);
-                    self.reaction(name, line, number, label, reaction, host.as_ref())?;
+                    self.reaction(name, line, number, label, reaction, &mut hosts)?;
                 }
             }
         }
@@ -236,14 +225,7 @@ pub fn run(args: &TypesetArgs) -> ExitCode {
         );
     }
     let host = match args.host.as_deref().map(host_argument).transpose() {
-        Ok(host) => host.map(|h| {
-            let spec = args.host.clone().unwrap_or_default();
-            Rc::new(HostSlot {
-                line: format!("host {spec}"),
-                spec,
-                host: h,
-            })
-        }),
+        Ok(host) => host.map(Arc::new),
         Err(code) => return code,
     };
     let stdout = io::stdout();
@@ -300,6 +282,8 @@ pub fn run(args: &TypesetArgs) -> ExitCode {
             };
         }
     }
+    // The inline reactions are one source, as `check --reaction` reads them.
+    let mut inline_hosts = HostTracker::new(host.clone());
     for (i, reaction) in args.reactions.iter().enumerate() {
         let line = reaction.replace('\n', " ");
         let number = u32::try_from(i + 1).unwrap_or(u32::MAX);
@@ -312,7 +296,7 @@ pub fn run(args: &TypesetArgs) -> ExitCode {
                     number,
                     label.as_deref(),
                     reaction,
-                    host.as_ref(),
+                    &mut inline_hosts,
                 )
             }
             _ => {

@@ -11,6 +11,7 @@
 use super::{ArgKind, COMMANDS, SIGIL, Vocabulary, continues, find_command};
 use crate::base::elements;
 use crate::file::reader::{self, Line};
+use crate::notation::arrow_at;
 use crate::typeset::Form;
 use rustyline::completion::{Completer, FilenameCompleter, Pair};
 use rustyline::highlight::{CmdKind, Highlighter};
@@ -434,8 +435,6 @@ fn mark_paint(c: char) -> Option<Paint> {
     }
 }
 
-const ARROWS: &[&str] = &["<=>", "<->", "-->", "->", "→", "⟶", "⇌", "⇄", "="];
-
 /// The line with escape sequences around species, marks, arrows, labels,
 /// comments and the command word. Removing the escapes gives `line` back.
 pub fn highlight_line(line: &str) -> String {
@@ -492,6 +491,25 @@ pub fn highlight_line(line: &str) -> String {
     paint_string(&chars, &paint)
 }
 
+/// The number of characters of an arrow of the one arrow table
+/// (`crate::notation::ARROWS`) that starts at character `k`, within bytes `..to`.
+fn arrow_here(chars: &[(usize, char)], k: usize, to: usize) -> Option<usize> {
+    let first = chars.get(k)?.1;
+    let mut buffer = [0u8; 4];
+    let lead = first.encode_utf8(&mut buffer).as_bytes().first().copied();
+    if !matches!(lead, Some(b'\\' | b'<' | b'-' | b'=' | 0xE2)) {
+        return None;
+    }
+    let rest: String = chars
+        .get(k..)?
+        .iter()
+        .take_while(|(b, _)| *b < to)
+        .map(|(_, c)| *c)
+        .collect();
+    let (len, _) = arrow_at(&rest)?;
+    Some(rest.get(..len)?.chars().count())
+}
+
 /// Paints arrows, species and marks of the reaction text in `from..to` (bytes).
 fn paint_reaction(chars: &[(usize, char)], paint: &mut [Option<Paint>], from: usize, to: usize) {
     #[derive(Clone, Copy, PartialEq, Eq)]
@@ -510,24 +528,13 @@ fn paint_reaction(chars: &[(usize, char)], paint: &mut [Option<Paint>], from: us
         .position(|(b, _)| *b >= from)
         .unwrap_or(chars.len());
     while k < chars.len() && chars[k].0 < to {
-        let (byte, c) = chars[k];
+        let c = chars[k].1;
         // Arrows first: they end whatever came before.
         if state != State::Marks || !matches!(c, '\'' | '.') {
-            let rest_start = byte;
-            let arrow = ARROWS.iter().find(|a| {
-                chars.get(k..).is_some_and(|tail| {
-                    tail.iter()
-                        .map(|(_, c)| *c)
-                        .take(a.chars().count())
-                        .eq(a.chars())
-                })
-            });
-            if let Some(a) = arrow {
-                let n = a.chars().count();
+            if let Some(n) = arrow_here(chars, k, to) {
                 for slot in paint.iter_mut().skip(k).take(n) {
                     *slot = Some(Paint::Arrow);
                 }
-                let _ = rest_start;
                 k += n;
                 state = State::Occupant;
                 species_start = None;

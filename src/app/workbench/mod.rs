@@ -22,14 +22,13 @@ mod store;
 
 pub use commands::COMMANDS;
 
-use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::Verdict;
-use crate::file::reader::{self, Line};
+use crate::file::reader::{self, HostHandle, HostTracker, Line};
+use crate::file::runner::check_line;
 use crate::host::Host;
-use crate::notation::latex_input::{self, looks_like_latex};
 use crate::notation::{
-    Entity, MarkStyle, Reaction, Span, Style, parse_reaction, render_reaction, render_term,
+    ARROWS, Entity, MarkStyle, Reaction, Span, Style, render_reaction, render_term,
 };
 use crate::report::Palette;
 use crate::report::human::{write_diagnostic, write_table};
@@ -64,6 +63,16 @@ impl HostSlot {
             line: format!("host {}", spec.trim()),
             host,
         })
+    }
+}
+
+impl HostHandle for Rc<HostSlot> {
+    fn host(&self) -> &Host {
+        &self.host
+    }
+
+    fn from_arrow(host: Host, over: &str) -> Self {
+        HostSlot::new(over, host)
     }
 }
 
@@ -279,109 +288,31 @@ pub struct Analysis {
 /// Reads and checks the reaction at `span` of `line`, as plain notation or
 /// LaTeX, against `host` (or the host over the arrow when there is none).
 pub fn analyse(line: &str, span: Span, host: Option<&Rc<HostSlot>>) -> Analysis {
-    let source = line.get(span.clone()).unwrap_or("");
-    let mut diagnostics = Vec::new();
-    let mut host_from_arrow = None;
-    if !looks_like_latex(source) {
-        let (reaction, parse_problems) = parse_reaction(line, span);
-        diagnostics.extend(parse_problems);
-        let verdict = reaction
-            .as_ref()
-            .map(|r| check_with_hint(r, host.map(|h| &h.host)));
-        if let Some(v) = &verdict {
-            diagnostics.extend(v.diagnostics.iter().cloned());
-        }
-        return Analysis {
-            reaction,
-            text: source.trim().to_string(),
-            from_latex: false,
-            diagnostics,
-            verdict,
-            host_from_arrow,
-        };
-    }
-    let offset = span.start;
-    let normalised = match latex_input::normalise(source) {
-        Ok(n) => n,
-        Err(mut d) => {
-            d.span = d.span.start + offset..d.span.end + offset;
-            return Analysis {
-                reaction: None,
-                text: String::new(),
-                from_latex: true,
-                diagnostics: vec![d],
-                verdict: None,
-                host_from_arrow,
-            };
-        }
-    };
-    for note in &normalised.notes {
-        let mut note = note.clone();
-        note.span = note.span.start + offset..note.span.end + offset;
-        diagnostics.push(note);
-    }
-    let mut effective = host.cloned();
-    if let Some((over, over_span)) = &normalised.over_arrow {
-        let at = over_span.start + offset..over_span.end + offset;
-        match (Host::from_spec(over), host) {
-            (Ok(arrow_host), None) => {
-                let slot = HostSlot::new(over, arrow_host);
-                effective = Some(slot.clone());
-                host_from_arrow = Some(slot);
-            }
-            (Ok(arrow_host), Some(current)) if !same_formula(&arrow_host, &current.host) => {
-                diagnostics.push(
-                    Diagnostic::new(
-                        Code::HostOverArrow,
-                        at,
-                        format!(
-                            "the arrow names the host {} but the reaction is checked against {}",
-                            over, current.spec
-                        ),
-                    )
-                    .with_help("set the host the reaction is meant for (`/host SPEC`), or fix the text over the arrow"),
-                );
-            }
-            _ => {}
-        }
-    }
-    let (reaction, parse_problems) = parse_reaction(&normalised.text, 0..normalised.text.len());
-    diagnostics.extend(
-        parse_problems
-            .into_iter()
-            .map(|d| normalised.relocate(d, offset)),
-    );
-    let verdict = reaction
-        .as_ref()
-        .map(|r| check_with_hint(r, effective.as_ref().map(|h| &h.host)));
-    if let Some(v) = &verdict {
-        diagnostics.extend(
-            v.diagnostics
-                .iter()
-                .cloned()
-                .map(|d| normalised.relocate(d, offset)),
-        );
-    }
-    let text = reaction
-        .as_ref()
-        .map(|r| render_reaction(r, Style::Unicode))
-        .unwrap_or_default();
-    Analysis {
-        reaction,
-        text,
-        from_latex: true,
-        diagnostics,
-        verdict,
-        host_from_arrow,
-    }
+    analyse_in(line, span, &HostTracker::new(host.cloned()))
 }
 
-fn same_formula(a: &Host, b: &Host) -> bool {
-    let mut x = a.formula.atoms.clone();
-    let mut y = b.formula.atoms.clone();
-    x.sort();
-    y.sort();
-    x == y
+/// `analyse` with the host in force as a file walk has it: the file
+/// reader's and `check`'s own path (`file::runner::check_line`).
+pub(crate) fn analyse_in(line: &str, span: Span, hosts: &HostTracker<Rc<HostSlot>>) -> Analysis {
+    let checked = check_line(line, span.clone(), hosts);
+    let host_from_arrow = checked.host.taken.map(|(slot, _)| slot);
+    let text = if checked.from_latex {
+        checked
+            .reaction
+            .as_ref()
+            .map(|r| render_reaction(r, Style::Unicode))
+            .unwrap_or_default()
+    } else {
+        line.get(span).unwrap_or("").trim().to_string()
+    };
+    Analysis {
+        reaction: checked.reaction,
+        text,
+        from_latex: checked.from_latex,
+        diagnostics: checked.diagnostics,
+        verdict: checked.verdict,
+        host_from_arrow,
+    }
 }
 
 /// The style a reaction was written in, so text made for it matches.
@@ -415,20 +346,7 @@ pub fn continues(text: &str) -> bool {
         return false;
     }
     let lone_backslash = last.ends_with('\\') && !last.ends_with("\\\\");
-    let open_end = [
-        "+",
-        "->",
-        "<=>",
-        "→",
-        "⇌",
-        "⟶",
-        "=",
-        "\\longrightarrow",
-        "\\rightarrow",
-        "\\rightleftharpoons",
-    ]
-    .iter()
-    .any(|end| last.ends_with(end));
+    let open_end = last.ends_with('+') || ARROWS.iter().any(|(arrow, _)| last.ends_with(arrow));
     lone_backslash || open_end
 }
 
@@ -693,7 +611,7 @@ impl Session {
         out: &mut dyn Write,
     ) -> io::Result<()> {
         let analysis = analyse(line, span.clone(), self.host.as_ref());
-        let comment = reader::comment_start(line).map(|c| line[c..].trim_end().to_string());
+        let comment = reader::comment(line).map(str::to_string);
         let label = label.map(|l| line[l].to_string());
         if let Some(slot) = &analysis.host_from_arrow {
             writeln!(

@@ -8,10 +8,10 @@
 //! `--replace`. Lines the session does not model (comments, model lines,
 //! reactions that do not parse) are kept in place and written back.
 
-use super::{Args, Entry, Failure, HostSlot, OwnFile, Session, analyse};
+use super::{Args, Entry, Failure, HostSlot, OwnFile, Session, analyse_in};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::check::Verdict;
-use crate::file::reader::{self, Line};
+use crate::file::reader::{self, HostTracker, Line};
 use crate::host::Host;
 use crate::report::human::write_diagnostic;
 use atomic_write_file::AtomicWriteFile;
@@ -78,7 +78,7 @@ pub(super) fn load(
     let name = path.display().to_string();
     let was_empty = session.entries.is_empty() && session.trailer.is_empty();
     let default_host = session.host.clone();
-    let mut host = default_host.clone();
+    let mut hosts = HostTracker::new(default_host.clone());
     let mut declared: Option<Rc<HostSlot>> = None;
     let mut preamble: Vec<String> = Vec::new();
     let (mut added, mut failing, mut unreadable, mut lossy) = (0usize, 0usize, 0usize, false);
@@ -112,29 +112,36 @@ pub(super) fn load(
         };
         match reader::classify(&line) {
             Line::Blank | Line::Comment | Line::Model { .. } => preamble.push(line),
-            Line::Host(span) => match Host::parse(&line, span.clone()) {
-                Ok(parsed) => {
-                    let slot = Rc::new(HostSlot {
+            Line::Host(span) => {
+                let result = Host::parse(&line, span.clone()).map(|parsed| {
+                    Rc::new(HostSlot {
                         spec: line[span].trim().to_string(),
                         host: parsed,
                         line: line.clone(),
-                    });
-                    host = Some(slot.clone());
-                    declared = Some(slot);
-                    // Kept in place, so saving writes the file's own layout.
-                    preamble.push(line);
-                }
-                Err(diagnostics) => {
-                    for d in diagnostics {
-                        write_diagnostic(out, p, &name, &line, &d.locate(number, &line))?;
+                    })
+                });
+                hosts.declare(number, &result);
+                match result {
+                    Ok(slot) => declared = Some(slot),
+                    Err(diagnostics) => {
+                        // The reactions under it have no host, as in `check`.
+                        for d in diagnostics {
+                            write_diagnostic(out, p, &name, &line, &d.locate(number, &line))?;
+                        }
                     }
-                    // Keep the line; the reactions under it have no host, as in `check`.
-                    preamble.push(line);
-                    host = None;
                 }
-            },
+                // Kept in place, so saving writes the file's own layout.
+                preamble.push(line);
+            }
             Line::Reaction { label, reaction } => {
-                let analysis = analyse(&line, reaction.clone(), host.as_ref());
+                let analysis = analyse_in(&line, reaction.clone(), &hosts);
+                if let Some(slot) = &analysis.host_from_arrow {
+                    // Taken from over the arrow: in force from here on, as
+                    // `check` reads the file.
+                    hosts.declare(number, &Ok::<_, ()>(slot.clone()));
+                    declared = Some(slot.clone());
+                }
+                let host = hosts.host().cloned();
                 let ok = analysis.verdict.as_ref().is_some_and(Verdict::ok)
                     && !analysis.diagnostics.iter().any(Diagnostic::is_error);
                 let wrong = super::is_wrong(&analysis);
@@ -162,8 +169,7 @@ pub(super) fn load(
                     )?;
                     label = None;
                 }
-                let comment =
-                    reader::comment_start(&line).map(|c| line[c..].trim_end().to_string());
+                let comment = reader::comment(&line).map(str::to_string);
                 session.entries.push(Entry {
                     label,
                     text: line[reaction].trim().to_string(),
@@ -242,18 +248,26 @@ pub(super) fn file_text_with_lines(session: &Session) -> (String, Vec<u32>) {
         number = number.saturating_add(1);
         number
     };
-    let mut current: Option<Host> = None;
+    // The host a reader of the written file has in force.
+    let mut current: HostTracker<Rc<HostSlot>> = HostTracker::new(None);
     for entry in &session.entries {
         for line in &entry.preamble {
+            let at = push(&mut text, line);
             if let Line::Host(span) = reader::classify(line) {
-                current = Host::parse(line, span).ok();
+                let result = Host::parse(line, span.clone()).map(|host| {
+                    Rc::new(HostSlot {
+                        spec: line[span].trim().to_string(),
+                        host,
+                        line: line.clone(),
+                    })
+                });
+                current.declare(at, &result);
             }
-            push(&mut text, line);
         }
         if let Some(slot) = &entry.host {
-            if current.as_ref() != Some(&slot.host) {
-                push(&mut text, &slot.line);
-                current = Some(slot.host.clone());
+            if current.host().map(|h| &h.host) != Some(&slot.host) {
+                let at = push(&mut text, &slot.line);
+                current.declare(at, &Ok::<_, ()>(slot.clone()));
             }
         }
         lines.push(push(&mut text, &entry.file_line()));

@@ -3,8 +3,8 @@
 //! mendeleev 1.3.0; atomic weights brought to the IUPAC 2021 table,
 //! radii restricted to Shannon (1976). See the script for every change.
 
-use super::Spin::{High as H, Low as L, None as N};
-use super::{Element, IonicRadius, Spin};
+use super::data::Spin::{High as H, Low as L, None as N};
+use super::data::{Element, IonicRadius, Spin};
 
 const fn r(charge: i8, coordination: u8, spin: Spin, radius_pm: f64) -> IonicRadius {
     IonicRadius {
