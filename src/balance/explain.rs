@@ -299,11 +299,14 @@ impl System<'_> {
     /// What kind of species would fix a law, using the balance that holds
     /// without it (when that balance is unique) to say which side needs what.
     fn law_fix(&self, law: Law, v: Option<&[i64]>) -> String {
+        // `None` also when a sum leaves the exact range: the help is then
+        // the general one, never a wrapped number.
         let excess = |value: &dyn Fn(&Unknown<'_>) -> Q| -> Option<Q> {
             let v = v?;
             let mut total = Q::from_integer(0);
             for (u, x) in self.unknowns.iter().zip(v) {
-                total += Q::from_integer(u.side.sign() * x) * value(u);
+                let x = Q::from_integer(u.side.sign().checked_mul(*x)?);
+                total = number::add(total, number::mul(x, value(u)).ok()?).ok()?;
             }
             Some(total)
         };
@@ -331,7 +334,8 @@ impl System<'_> {
                 ),
                 Some(d) if d < Q::from_integer(0) => format!(
                     "balanced in everything else, the right side is {} more negative: add an electronic defect (h• on the right, or e′ on the left) or a positively charged defect",
-                    number::to_plain(-d)
+                    d.checked_abs()
+                        .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain)
                 ),
                 _ => "add an electronic defect (e′ or h•) or a charged defect".into(),
             },
@@ -381,7 +385,25 @@ impl System<'_> {
             .sublattices
             .iter()
             .all(|s| s.count > Q::from_integer(0));
-        let (Some(v), true) = (v, counted) else {
+        // Net site changes and their ratio to the host's counts; `None` when
+        // a sum leaves the exact range.
+        let changes = || -> Option<(Vec<Q>, Vec<Q>)> {
+            let v = v?;
+            let mut delta = vec![Q::from_integer(0); host.sublattices.len()];
+            for (u, x) in self.unknowns.iter().zip(v) {
+                let x = Q::from_integer(u.side.sign().checked_mul(*x)?);
+                for (d, s) in delta.iter_mut().zip(&u.content.sites) {
+                    *d = number::add(*d, number::mul(x, *s).ok()?).ok()?;
+                }
+            }
+            let lambda = delta
+                .iter()
+                .zip(&host.sublattices)
+                .map(|(d, s)| d.checked_div(s.count).ok())
+                .collect::<Option<Vec<Q>>>()?;
+            Some((delta, lambda))
+        };
+        let (Some((delta, lambda)), true) = (counted.then(changes).flatten(), counted) else {
             let all: Vec<String> = host.sublattices.iter().map(kind_examples).collect();
             return format!(
                 "regular sites are created only in the ratio {}: add {}",
@@ -389,17 +411,6 @@ impl System<'_> {
                 all.join(", or ")
             );
         };
-        let mut delta = vec![Q::from_integer(0); host.sublattices.len()];
-        for (u, x) in self.unknowns.iter().zip(v) {
-            for (d, s) in delta.iter_mut().zip(&u.content.sites) {
-                *d += Q::from_integer(u.side.sign() * x) * s;
-            }
-        }
-        let lambda: Vec<Q> = delta
-            .iter()
-            .zip(&host.sublattices)
-            .map(|(d, s)| d / s.count)
-            .collect();
         let most = lambda.iter().copied().max().unwrap_or_default();
         let changes: Vec<String> = host
             .sublattices
@@ -416,7 +427,9 @@ impl System<'_> {
                 format!(
                     "{} {} more ({})",
                     s.name(),
-                    number::to_plain((most - l) * s.count),
+                    number::sub(most, *l)
+                        .and_then(|x| number::mul(x, s.count))
+                        .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain),
                     kind_examples(s)
                 )
             })
@@ -458,7 +471,7 @@ pub(super) fn signed(q: Q) -> String {
     if q > Q::from_integer(0) {
         format!("+{}", number::to_plain(q))
     } else if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(-q))
+        format!("−{}", number::to_plain(q).trim_start_matches('-'))
     } else {
         "0".into()
     }
@@ -467,7 +480,10 @@ pub(super) fn signed(q: Q) -> String {
 /// `O_O×` (regular) or `V_O••` (fully ionised vacancy) for a sublattice, as text.
 fn site_species_text(sub: &Sublattice, vacancy: bool) -> String {
     let charge = if vacancy {
-        -sub.charge
+        let Ok(charge) = sub.charge.checked_neg() else {
+            return format!("V_{}", sub.name());
+        };
+        charge
     } else {
         Q::from_integer(0)
     };

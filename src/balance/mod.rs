@@ -27,7 +27,6 @@ use crate::notation::{
 use explain::signed;
 use matrix::{Matrix, TooLarge, nullspace, primitive, rank};
 use num_integer::Integer;
-use num_traits::Signed;
 
 /// Which side of the arrow a term is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -316,7 +315,7 @@ fn content_of(
                 match host.lookup(*element, label.as_deref()) {
                     SiteLookup::Found(i) => {
                         if let Some(slot) = content.sites.get_mut(i) {
-                            *slot += Q::from_integer(1);
+                            *slot = number::add(*slot, Q::from_integer(1)).map_err(overflow)?;
                         }
                     }
                     SiteLookup::NeedsLabel | SiteLookup::Missing => {
@@ -356,7 +355,7 @@ fn content_of(
                         .map_err(overflow)?;
                 }
             }
-            content.charge = a.net_charge();
+            content.charge = a.net_charge().map_err(overflow)?;
         }
     }
     Ok(content)
@@ -456,8 +455,18 @@ impl<'r> System<'r> {
         let mut rows: Vec<Vec<Q>> = Vec::new();
         // Negation, not multiplication by −1: no gcd work.
         let signed = |u: &Unknown<'_>, q: Q| match u.side {
-            Side::Left => -q,
-            Side::Right => q,
+            Side::Left => q.checked_neg(),
+            Side::Right => Ok(q),
+        };
+        let too_large = |_| {
+            vec![
+                Diagnostic::new(
+                    Code::CannotBalance,
+                    reaction.span.clone(),
+                    "the counts of this reaction grow beyond the exact range",
+                )
+                .with_help("use smaller counts; the balancer works exactly and cannot approximate"),
+            ]
         };
         let mut seen: Vec<u8> = Vec::new();
         for u in &unknowns {
@@ -473,7 +482,8 @@ impl<'r> System<'r> {
                 unknowns
                     .iter()
                     .map(|u| signed(u, u.content.count(z)))
-                    .collect(),
+                    .collect::<Result<_, _>>()
+                    .map_err(too_large)?,
             );
         }
         laws.push(Law::Charge);
@@ -481,7 +491,8 @@ impl<'r> System<'r> {
             unknowns
                 .iter()
                 .map(|u| signed(u, u.content.charge))
-                .collect(),
+                .collect::<Result<_, _>>()
+                .map_err(too_large)?,
         );
         if let Some(host) = host {
             // Net site changes Δ_k must be λ·c_k: c_0·Δ_k − c_k·Δ_0 = 0 for k ≥ 1.
@@ -492,9 +503,12 @@ impl<'r> System<'r> {
                         .map(|u| {
                             let s0 = u.content.sites.first().copied().unwrap_or_default();
                             let sk = u.content.sites.get(k).copied().unwrap_or_default();
-                            signed(u, first.count * sk - sub.count * s0)
+                            number::mul(first.count, sk)
+                                .and_then(|a| number::sub(a, number::mul(sub.count, s0)?))
+                                .and_then(|d| signed(u, d))
                         })
-                        .collect();
+                        .collect::<Result<_, _>>()
+                        .map_err(too_large)?;
                     laws.push(Law::Sites);
                     rows.push(row);
                 }
@@ -746,7 +760,9 @@ impl<'r> System<'r> {
                 continue;
             }
             let mut term = u.term.clone();
-            term.coefficient = if *c < zero { -*c } else { *c };
+            // Entries come from primitive i64 vectors, never i64::MIN (see
+            // `matrix`), so the size always exists.
+            term.coefficient = c.checked_abs().unwrap_or(*c);
             term.coefficient_written = true;
             match (u.side, *c > zero) {
                 (Side::Left, true) => left.push(term),
@@ -797,8 +813,10 @@ impl<'r> System<'r> {
                     } else {
                         u.side
                     },
-                    coefficient: c.abs(),
-                    conventional: conv.abs(),
+                    // Coefficients come from the i64 nullspace vector made
+                    // primitive, so none is i64::MIN; `abs` cannot fail.
+                    coefficient: c.checked_abs().unwrap_or(*c),
+                    conventional: conv.checked_abs().unwrap_or(*conv),
                 })
                 .collect(),
             reaction: self.rebuild(v),
@@ -840,7 +858,12 @@ fn conventional_scale(v: &[Q], unknowns: &[Unknown<'_>]) -> Vec<Q> {
     if g <= 1 {
         return v.to_vec();
     }
-    v.iter().map(|x| x / Q::from_integer(g)).collect()
+    // g > 1 divides every condensed coefficient, so the quotients are exact
+    // and smaller; a failure cannot happen, and would leave `v` unscaled.
+    v.iter()
+        .map(|x| x.checked_div(Q::from_integer(g)))
+        .collect::<Result<_, _>>()
+        .unwrap_or_else(|_| v.to_vec())
 }
 
 /// Elementary balanced reactions: null vectors of minimal support, found by

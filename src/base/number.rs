@@ -4,12 +4,23 @@
 //! Arithmetic goes through the checked helpers here, so an overflow becomes an
 //! error the caller reports instead of a wrapped, silently wrong number.
 
-use num_rational::Ratio;
-use num_traits::{CheckedAdd, CheckedDiv, CheckedMul, CheckedSub, Zero};
+use num_bigint::BigInt;
+use num_integer::Integer;
+use num_rational::{BigRational, Ratio};
+use num_traits::ToPrimitive;
+use std::cmp::Ordering;
 use std::fmt;
 
-/// An exact rational number.
-pub type Q = Ratio<i64>;
+/// An exact rational number: a reduced `i64` fraction with a positive
+/// denominator.
+///
+/// `Q` has no arithmetic operators on purpose. Every sum, product or
+/// quotient goes through a checked method (`checked_add`, [`sum`], ...)
+/// that returns [`Overflow`] when the exact result does not fit, so a
+/// wrapped number cannot reach the user and unchecked arithmetic does not
+/// compile.
+#[derive(Clone, Copy, PartialEq, Eq, Hash)]
+pub struct Q(Ratio<i64>);
 
 /// A checked arithmetic step overflowed `i64` numerators or denominators.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -23,30 +34,367 @@ impl fmt::Display for Overflow {
 
 impl std::error::Error for Overflow {}
 
+/// `n/d` reduced, with a positive denominator, if it fits in `i64` parts.
+/// Inputs come from products of two `i64`, so they never reach `i128::MIN`
+/// and the negations and divisions below cannot overflow.
+fn reduce_i128(n: i128, d: i128) -> Result<Q, Overflow> {
+    if d == 0 {
+        return Err(Overflow);
+    }
+    let g = n.gcd(&d);
+    // g > 0 because d != 0; the quotients are exact.
+    let (mut n, mut d) = (
+        n.checked_div(g).ok_or(Overflow)?,
+        d.checked_div(g).ok_or(Overflow)?,
+    );
+    if d < 0 {
+        n = n.checked_neg().ok_or(Overflow)?;
+        d = d.checked_neg().ok_or(Overflow)?;
+    }
+    let n = i64::try_from(n).map_err(|_| Overflow)?;
+    let d = i64::try_from(d).map_err(|_| Overflow)?;
+    Ok(Q(Ratio::new_raw(n, d)))
+}
+
+impl Q {
+    /// Zero.
+    pub const ZERO: Q = Q(Ratio::new_raw(0, 1));
+    /// One.
+    pub const ONE: Q = Q(Ratio::new_raw(1, 1));
+
+    /// `numer/denom` reduced. For constants written in the code: a zero
+    /// denominator is a programming error and panics. Numbers from input go
+    /// through [`Q::checked_new`] or [`parse`].
+    pub fn new(numer: i64, denom: i64) -> Q {
+        match Q::checked_new(numer, denom) {
+            Some(q) => q,
+            None => panic!("Q::new({numer}, {denom}): zero denominator or out of range"),
+        }
+    }
+
+    /// `numer/denom` reduced, or `None` for a zero denominator or a result
+    /// beyond the `i64` range (`i64::MIN / -1`).
+    pub fn checked_new(numer: i64, denom: i64) -> Option<Q> {
+        reduce_i128(i128::from(numer), i128::from(denom)).ok()
+    }
+
+    /// An integer.
+    pub const fn from_integer(n: i64) -> Q {
+        Q(Ratio::new_raw(n, 1))
+    }
+
+    /// Zero.
+    pub const fn zero() -> Q {
+        Q::ZERO
+    }
+
+    /// One.
+    pub const fn one() -> Q {
+        Q::ONE
+    }
+
+    /// The numerator (carries the sign).
+    pub fn numer(&self) -> &i64 {
+        self.0.numer()
+    }
+
+    /// The denominator, always positive.
+    pub fn denom(&self) -> &i64 {
+        self.0.denom()
+    }
+
+    pub fn is_integer(&self) -> bool {
+        *self.denom() == 1
+    }
+
+    pub fn is_zero(&self) -> bool {
+        *self.numer() == 0
+    }
+
+    pub fn is_one(&self) -> bool {
+        *self == Q::ONE
+    }
+
+    pub fn is_positive(&self) -> bool {
+        *self.numer() > 0
+    }
+
+    pub fn is_negative(&self) -> bool {
+        *self.numer() < 0
+    }
+
+    /// -1, 0 or 1.
+    pub fn signum(&self) -> Q {
+        Q::from_integer(self.numer().signum())
+    }
+
+    /// The integer part, rounded toward zero (never overflows: the
+    /// denominator is positive).
+    pub fn to_integer(&self) -> i64 {
+        self.0.to_integer()
+    }
+
+    /// The nearest `f64` (`None` never happens for `i64` parts, kept for
+    /// the shape of `ToPrimitive`).
+    pub fn to_f64(&self) -> Option<f64> {
+        self.0.to_f64()
+    }
+
+    /// The same value as a big rational, for exact work beyond `i64`.
+    pub fn to_big(&self) -> BigRational {
+        BigRational::new_raw(BigInt::from(*self.numer()), BigInt::from(*self.denom()))
+    }
+
+    /// A big rational as a `Q`, or `Overflow` when its reduced parts do not
+    /// fit in `i64`.
+    pub fn from_big(r: &BigRational) -> Result<Q, Overflow> {
+        let r = r.reduced();
+        let n = r.numer().to_i64().ok_or(Overflow)?;
+        let d = r.denom().to_i64().ok_or(Overflow)?;
+        reduce_i128(i128::from(n), i128::from(d))
+    }
+
+    /// `self + rhs`, or `Overflow`.
+    pub fn checked_add(self, rhs: Q) -> Result<Q, Overflow> {
+        let (a, b) = self.wide();
+        let (c, d) = rhs.wide();
+        if b == 1 && d == 1 {
+            return self
+                .numer()
+                .checked_add(*rhs.numer())
+                .map(Q::from_integer)
+                .ok_or(Overflow);
+        }
+        // |a d|, |c b| < 2^126, so neither the products nor the sum overflow i128.
+        let n = a
+            .checked_mul(d)
+            .and_then(|x| c.checked_mul(b).and_then(|y| x.checked_add(y)));
+        reduce_i128(n.ok_or(Overflow)?, b.checked_mul(d).ok_or(Overflow)?)
+    }
+
+    /// `self - rhs`, or `Overflow`.
+    pub fn checked_sub(self, rhs: Q) -> Result<Q, Overflow> {
+        let (a, b) = self.wide();
+        let (c, d) = rhs.wide();
+        let n = a
+            .checked_mul(d)
+            .and_then(|x| c.checked_mul(b).and_then(|y| x.checked_sub(y)));
+        reduce_i128(n.ok_or(Overflow)?, b.checked_mul(d).ok_or(Overflow)?)
+    }
+
+    /// `self * rhs`, or `Overflow`.
+    pub fn checked_mul(self, rhs: Q) -> Result<Q, Overflow> {
+        let (a, b) = self.wide();
+        let (c, d) = rhs.wide();
+        if b == 1 && d == 1 {
+            return self
+                .numer()
+                .checked_mul(*rhs.numer())
+                .map(Q::from_integer)
+                .ok_or(Overflow);
+        }
+        reduce_i128(
+            a.checked_mul(c).ok_or(Overflow)?,
+            b.checked_mul(d).ok_or(Overflow)?,
+        )
+    }
+
+    /// `self / rhs`, or `Overflow` (also for division by zero).
+    pub fn checked_div(self, rhs: Q) -> Result<Q, Overflow> {
+        let (a, b) = self.wide();
+        let (c, d) = rhs.wide();
+        reduce_i128(
+            a.checked_mul(d).ok_or(Overflow)?,
+            b.checked_mul(c).ok_or(Overflow)?,
+        )
+    }
+
+    /// `-self`, or `Overflow` for `i64::MIN`.
+    pub fn checked_neg(self) -> Result<Q, Overflow> {
+        let n = self.numer().checked_neg().ok_or(Overflow)?;
+        Ok(Q(Ratio::new_raw(n, *self.denom())))
+    }
+
+    /// `|self|`, or `Overflow` for `i64::MIN`.
+    pub fn checked_abs(self) -> Result<Q, Overflow> {
+        if self.is_negative() {
+            self.checked_neg()
+        } else {
+            Ok(self)
+        }
+    }
+
+    /// `1/self`, or `Overflow` for zero and for `i64::MIN` as numerator.
+    pub fn checked_recip(self) -> Result<Q, Overflow> {
+        Q::ONE.checked_div(self)
+    }
+
+    /// `self * n` for an integer `n`, or `Overflow`.
+    pub fn checked_mul_int(self, n: i64) -> Result<Q, Overflow> {
+        self.checked_mul(Q::from_integer(n))
+    }
+
+    /// The integer part, rounded toward zero, as a `Q`.
+    pub fn trunc(&self) -> Q {
+        Q::from_integer(self.to_integer())
+    }
+
+    /// The greatest integer not above `self`, as a `Q`.
+    pub fn floor(&self) -> Q {
+        // div_floor by a positive denominator cannot overflow.
+        Q::from_integer(self.numer().div_floor(self.denom()))
+    }
+
+    /// The least integer not below `self`, as a `Q`.
+    pub fn ceil(&self) -> Q {
+        // -(-n div_floor d) overflows only for n = MIN with d = 1, an integer.
+        if self.is_integer() {
+            return *self;
+        }
+        Q::from_integer(self.numer().div_floor(self.denom()).saturating_add(1))
+    }
+
+    fn wide(self) -> (i128, i128) {
+        (i128::from(*self.numer()), i128::from(*self.denom()))
+    }
+}
+
+impl Default for Q {
+    fn default() -> Q {
+        Q::ZERO
+    }
+}
+
+impl From<i64> for Q {
+    fn from(n: i64) -> Q {
+        Q::from_integer(n)
+    }
+}
+
+impl Ord for Q {
+    fn cmp(&self, other: &Q) -> Ordering {
+        let (a, b) = self.wide();
+        let (c, d) = other.wide();
+        // Positive denominators; the cross products fit in i128.
+        let left = a.checked_mul(d).unwrap_or_default();
+        let right = c.checked_mul(b).unwrap_or_default();
+        left.cmp(&right)
+    }
+}
+
+impl PartialOrd for Q {
+    fn partial_cmp(&self, other: &Q) -> Option<Ordering> {
+        Some(self.cmp(other))
+    }
+}
+
+impl fmt::Debug for Q {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        fmt::Debug::fmt(&self.0, f)
+    }
+}
+
+impl fmt::Display for Q {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        fmt::Display::fmt(&self.0, f)
+    }
+}
+
+/// The exact sum of `items`, or `Overflow` when it does not fit in `i64`
+/// parts. Intermediate sums are kept in `i128` and then in big integers, so
+/// the order of the terms never matters: the sum fails only when the result
+/// itself is out of range.
+pub fn sum<I: IntoIterator<Item = Q>>(items: I) -> Result<Q, Overflow> {
+    let mut items = items.into_iter();
+    // Fast path: an i128 fraction.
+    let (mut n, mut d): (i128, i128) = (0, 1);
+    for q in items.by_ref() {
+        let (a, b) = q.wide();
+        let step = if d == 1 && b == 1 {
+            n.checked_add(a).map(|n| (n, 1))
+        } else {
+            add_i128(n, d, a, b)
+        };
+        match step {
+            Some((n2, d2)) => (n, d) = (n2, d2),
+            None => {
+                // Continue exactly in big integers from here on.
+                let mut big = BigRational::new(BigInt::from(n), BigInt::from(d));
+                big += q.to_big();
+                for q in items {
+                    big += q.to_big();
+                }
+                return Q::from_big(&big);
+            }
+        }
+    }
+    reduce_i128(n, d)
+}
+
+/// The exact sum of fallible terms: the first `Err` among them, else
+/// [`sum`] of the values.
+pub fn sum_checked<I: IntoIterator<Item = Result<Q, Overflow>>>(items: I) -> Result<Q, Overflow> {
+    let mut failed = None;
+    let total = sum(items
+        .into_iter()
+        .map_while(|r| r.map_err(|e| failed = Some(e)).ok()));
+    match failed {
+        Some(e) => Err(e),
+        None => total,
+    }
+}
+
+/// `n/d + a/b` in `i128`, reduced, or `None` when it leaves `i128`.
+fn add_i128(n: i128, d: i128, a: i128, b: i128) -> Option<(i128, i128)> {
+    let g = d.gcd(&b);
+    let l = d.checked_div(g)?.checked_mul(b)?;
+    let x = n.checked_mul(l.checked_div(d)?)?;
+    let y = a.checked_mul(l.checked_div(b)?)?;
+    let s = x.checked_add(y)?;
+    let h = s.gcd(&l);
+    Some((s.checked_div(h)?, l.checked_div(h)?))
+}
+
+/// Whether `a·b = c·d` exactly, whatever the sizes (products that leave the
+/// `i64` range are compared as big rationals).
+pub fn products_equal(a: Q, b: Q, c: Q, d: Q) -> bool {
+    match (a.checked_mul(b), c.checked_mul(d)) {
+        (Ok(x), Ok(y)) => x == y,
+        // Checked products are exact whenever they fit: one fits and the
+        // other does not, so they differ.
+        (Ok(_), Err(_)) | (Err(_), Ok(_)) => false,
+        (Err(_), Err(_)) => big_mul(a, b) == big_mul(c, d),
+    }
+}
+
+/// `a·b` as a big rational: never overflows.
+fn big_mul(a: Q, b: Q) -> BigRational {
+    a.to_big() * b.to_big()
+}
+
 /// `a + b`, or `Overflow`.
 pub fn add(a: Q, b: Q) -> Result<Q, Overflow> {
-    // Integers are the common case; skip the gcd work for them.
-    if a.is_integer() && b.is_integer() {
-        return i64::checked_add(*a.numer(), *b.numer())
-            .map(Q::from_integer)
-            .ok_or(Overflow);
-    }
-    a.checked_add(&b).ok_or(Overflow)
+    a.checked_add(b)
 }
 
 /// `a - b`, or `Overflow`.
 pub fn sub(a: Q, b: Q) -> Result<Q, Overflow> {
-    a.checked_sub(&b).ok_or(Overflow)
+    a.checked_sub(b)
 }
 
 /// `a * b`, or `Overflow`.
 pub fn mul(a: Q, b: Q) -> Result<Q, Overflow> {
-    if a.is_integer() && b.is_integer() {
-        return i64::checked_mul(*a.numer(), *b.numer())
-            .map(Q::from_integer)
-            .ok_or(Overflow);
-    }
-    a.checked_mul(&b).ok_or(Overflow)
+    a.checked_mul(b)
+}
+
+/// `a / b`, or `Overflow` (also for `b` = 0).
+pub fn div(a: Q, b: Q) -> Result<Q, Overflow> {
+    a.checked_div(b)
+}
+
+/// `-a`, or `Overflow`.
+pub fn neg(a: Q) -> Result<Q, Overflow> {
+    a.checked_neg()
 }
 
 /// An integer as a `Q`.
@@ -103,11 +451,15 @@ pub fn parse(text: &str) -> Result<Q, NumberError> {
         if d.is_zero() {
             return Err(NumberError::DivisionByZero);
         }
-        n.checked_div(&d).ok_or(NumberError::TooLarge)?
+        n.checked_div(d).map_err(|_| NumberError::TooLarge)?
     } else {
         parse_decimal(body)?
     };
-    Ok(if negative { -value } else { value })
+    if negative {
+        value.checked_neg().map_err(|_| NumberError::TooLarge)
+    } else {
+        Ok(value)
+    }
 }
 
 /// Parses an unsigned decimal such as `12` or `0.125` into an exact fraction.
@@ -130,7 +482,7 @@ pub fn parse_decimal(text: &str) -> Result<Q, NumberError> {
         .ok()
         .and_then(|len| 10i64.checked_pow(len))
         .ok_or(NumberError::TooLarge)?;
-    Ok(Q::new(numer, denom))
+    Q::checked_new(numer, denom).ok_or(NumberError::TooLarge)
 }
 
 /// Why a number could not be read.

@@ -77,7 +77,12 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
             overflow = true;
         }
     }
-    if overflow {
+    let site_holds = if checker.sites_known {
+        site_ratio_holds(&table.sites).map(Some)
+    } else {
+        Ok(None)
+    };
+    if overflow || site_holds.is_err() {
         // The sums are not trustworthy: report that alone, and no balance.
         checker.diags.push(
             Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range")
@@ -95,11 +100,7 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     }
     let mass = table.elements.iter().all(|(_, l, r)| l == r);
     let charge = table.charge.0 == table.charge.1;
-    let site = if checker.sites_known {
-        Some(site_ratio_holds(&table.sites))
-    } else {
-        None
-    };
+    let site = site_holds.unwrap_or(None);
     if host.is_none() {
         checker.diags.push(
             Diagnostic::new(
@@ -177,19 +178,32 @@ fn mentions_vanadium(reaction: &Reaction) -> bool {
 }
 
 /// Net site changes must be proportional to the host's site counts.
-fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> bool {
+fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> Result<bool, number::Overflow> {
     let Some((_, count0, l0, r0)) = sites.first() else {
-        return true;
+        return Ok(true);
     };
     if *count0 == Q::from_integer(0) {
-        return false;
+        return Ok(false);
     }
-    let lambda = (r0 - l0) / count0;
-    sites.iter().all(|(_, count, l, r)| r - l == lambda * count)
+    let lambda = number::sub(*r0, *l0)?.checked_div(*count0)?;
+    for (_, count, l, r) in sites {
+        if number::sub(*r, *l)? != number::mul(lambda, *count)? {
+            return Ok(false);
+        }
+    }
+    Ok(true)
+}
+
+/// The text of a number computed for a message, or a plain statement when
+/// it left the exact range (never a wrapped number).
+fn exact_text(q: Result<Q, number::Overflow>, text: fn(Q) -> String) -> String {
+    q.map_or_else(|_| "beyond the exact range".to_string(), text)
 }
 
 fn signed_text(q: Q) -> String {
-    let plain = number::to_plain(if q < Q::from_integer(0) { -q } else { q });
+    let Ok(plain) = q.checked_abs().map(number::to_plain) else {
+        return format!("−{}", number::to_plain(q).trim_start_matches('-'));
+    };
     if q < Q::from_integer(0) {
         format!("−{plain}")
     } else {
@@ -203,6 +217,16 @@ fn change_text(q: Q) -> String {
     } else {
         signed_text(q)
     }
+}
+
+/// A P107 at `span`: `what` left the exact range.
+fn overflow_at(span: Span, what: &str) -> Diagnostic {
+    Diagnostic::new(
+        Code::Number,
+        span,
+        format!("{what} is beyond the exact range (about 9.2e18)"),
+    )
+    .with_help("use smaller numbers; charges and counts are exact, so they cannot be approximated")
 }
 
 fn symbol(z: u8) -> &'static str {
@@ -229,7 +253,13 @@ impl Checker<'_> {
                     self.validate_term(part);
                 }
                 if let Some(declared) = a.charge {
-                    let parts = a.parts_charge();
+                    let Ok(parts) = a.parts_charge() else {
+                        self.push(
+                            Diagnostic::new(Code::Number, a.span.clone(), "the charges of this associate's parts add up to more than Lacuna holds exactly (about 9.2e18)")
+                                .with_help("use smaller coefficients inside the associate; charges are exact, so they cannot be added approximately"),
+                        );
+                        return;
+                    };
                     if parts != Q::from_integer(i64::from(declared)) {
                         self.push(
                             Diagnostic::new(Code::AssociateCharge, a.span.clone(), format!(
@@ -311,7 +341,13 @@ impl Checker<'_> {
             Occupant::Vacancy(_) => self.vacancy_range(s, site_charge),
             Occupant::Atoms { formula, .. } => {
                 if let Some(z) = formula.single_element() {
-                    self.oxidation_state(s, z, effective + site_charge, site_charge);
+                    match number::add(effective, site_charge) {
+                        Ok(real) => self.oxidation_state(s, z, real, site_charge),
+                        Err(_) => self.push(overflow_at(
+                            s.span.clone(),
+                            "the real charge of this species",
+                        )),
+                    }
                 }
             }
             _ => {}
@@ -377,7 +413,10 @@ impl Checker<'_> {
     fn vacancy_range(&mut self, s: &Species, site_charge: Q) {
         let q = Q::from_integer(i64::from(s.charge));
         let zero = Q::from_integer(0);
-        let limit = -site_charge;
+        let Ok(limit) = site_charge.checked_neg() else {
+            self.push(overflow_at(s.span.clone(), "the charge of this site"));
+            return;
+        };
         let inside = if limit >= zero {
             q >= zero && q <= limit
         } else {
@@ -532,7 +571,8 @@ impl Checker<'_> {
                 let declared = a.charge.map(|c| Q::from_integer(i64::from(c)));
                 if let Some(declared) = declared {
                     // The parts already added their own charges; replace them by the declared net.
-                    let correction = number::mul(amount, declared - a.parts_charge())?;
+                    let correction =
+                        number::mul(amount, number::sub(declared, a.parts_charge()?)?)?;
                     if right {
                         add(&mut table.charge.1, correction)?
                     } else {
@@ -611,8 +651,9 @@ impl Checker<'_> {
         // Point at one species whose charge mark, corrected, would balance the
         // reaction with a plausible charge: usually the typo.
         if let Some((span, fixed, note)) = look_for_culprit
-            .then(|| self.charge_culprit(reaction, right - left))
+            .then(|| number::sub(right, left).ok())
             .flatten()
+            .and_then(|excess| self.charge_culprit(reaction, excess))
         {
             diagnostic.span = span;
             diagnostic.label = Some(note);
@@ -644,11 +685,19 @@ impl Checker<'_> {
                 continue;
             };
             let site_charge = host.sublattices[i].charge;
-            let delta = if right { -excess_right } else { excess_right } / term.coefficient;
+            let delta = if right {
+                excess_right.checked_neg()
+            } else {
+                Ok(excess_right)
+            }
+            .and_then(|d| d.checked_div(term.coefficient));
+            let Ok(delta) = delta else { continue };
             if !delta.is_integer() {
                 continue;
             }
-            let new_charge = i64::from(s.charge) + delta.numer();
+            let Some(new_charge) = i64::from(s.charge).checked_add(*delta.numer()) else {
+                continue;
+            };
             let Ok(new_charge) = i32::try_from(new_charge) else {
                 continue;
             };
@@ -658,7 +707,9 @@ impl Checker<'_> {
             let q = Q::from_integer(i64::from(new_charge));
             let (plausible, note) = match &s.occupant {
                 Occupant::Vacancy(_) => {
-                    let full = -site_charge;
+                    let Ok(full) = site_charge.checked_neg() else {
+                        continue;
+                    };
                     let ok = if full >= Q::from_integer(0) {
                         q >= Q::from_integer(0) && q <= full
                     } else {
@@ -691,9 +742,11 @@ impl Checker<'_> {
                         .single_element()
                         .and_then(elements::by_z)
                         .is_some_and(|e| {
-                            let real = q + site_charge;
-                            real.is_integer()
-                                && i8::try_from(*real.numer()).is_ok_and(|st| e.is_common_state(st))
+                            number::add(q, site_charge).is_ok_and(|real| {
+                                real.is_integer()
+                                    && i8::try_from(*real.numer())
+                                        .is_ok_and(|st| e.is_common_state(st))
+                            })
                         });
                     (ok, format!("balances as {fixed_text}"))
                 }
@@ -715,7 +768,13 @@ impl Checker<'_> {
         let changes: Vec<String> = table
             .sites
             .iter()
-            .map(|(i, _, l, r)| format!("{} {}", site_name(host, *i), change_text(r - l)))
+            .map(|(i, _, l, r)| {
+                format!(
+                    "{} {}",
+                    site_name(host, *i),
+                    exact_text(number::sub(*r, *l), change_text)
+                )
+            })
             .collect();
         let mut message = format!(
             "sites break the {} ratio {}: net change {}",
@@ -726,16 +785,19 @@ impl Checker<'_> {
         // Say what the other sublattices would need, scaled to the first that changed.
         if let Some((first, count, l, r)) = table.sites.iter().find(|(_, _, l, r)| l != r) {
             let name = site_name(host, *first);
-            let lambda = (r - l) / count;
+            let lambda = number::sub(*r, *l).and_then(|d| d.checked_div(*count));
             let needed: Vec<String> = table
                 .sites
                 .iter()
                 .filter(|(n, ..)| n != first)
-                .map(|(n, c, ..)| format!("{} {}", site_name(host, *n), change_text(lambda * c)))
+                .map(|(n, c, ..)| {
+                    let need = lambda.and_then(|x| number::mul(x, *c));
+                    format!("{} {}", site_name(host, *n), exact_text(need, change_text))
+                })
                 .collect();
             message.push_str(&format!(
                 " (for {name} {} the host needs {})",
-                change_text(r - l),
+                exact_text(number::sub(*r, *l), change_text),
                 needed.join(", ")
             ));
         }

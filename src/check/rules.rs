@@ -7,9 +7,11 @@
 //! `--deny`/`--warn`/`--allow`) and per-line `# lacuna-allow:` comments.
 
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
-use crate::base::number::Q;
+use crate::base::number::{self, Q};
 use crate::host::{Host, SiteLookup};
-use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Span, Species, Term};
+use crate::notation::{
+    Entity, MarkStyle, Occupant, Phase, Reaction, Site, Span, Species, SpeciesKey, Term,
+};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
 use std::hash::{BuildHasherDefault, Hash, Hasher};
@@ -165,7 +167,10 @@ const REPEAT_TRACKING_LIMIT: usize = 100_000;
 pub struct FileLints {
     dot_style: Option<(MarkStyle, u32)>,
     other_style: Option<(MarkStyle, u32)>,
-    seen: HashMap<u64, u32, KeyIsHash>,
+    /// Reactions seen so far by the hash of their scaled net stoichiometry,
+    /// with the line and the net itself: a hash match is only a candidate,
+    /// the nets are compared exactly before anything is reported.
+    seen: HashMap<u64, Vec<(u32, Net)>, KeyIsHash>,
     /// Names seen so far, by hash (bounded memory on huge files).
     labels: HashMap<NameKey, u32, KeyIsHash>,
     /// Names used by model lines: (line, line text, span of the name).
@@ -184,8 +189,8 @@ pub struct ReactionFacts {
     label: Option<(u64, Span)>,
     /// (charge is positive, style as tracked, span) of each marked species, in order.
     marks: Vec<(bool, MarkStyle, Span)>,
-    /// Hashes of the net stoichiometry, forwards and reversed.
-    repeat: Option<(u64, u64)>,
+    /// The net stoichiometry and its hashes, forwards and reversed.
+    repeat: Option<Repeat>,
     span: Span,
     /// The first fractional coefficient's span, if any.
     fractional: Option<Span>,
@@ -275,8 +280,8 @@ impl FileLints {
             }
         }
         self.mark_styles(line, facts.marks, &mut out);
-        if let Some(hashes) = facts.repeat {
-            self.repeats(line, hashes, facts.span, &mut out);
+        if let Some(repeat) = facts.repeat {
+            self.repeats(line, repeat, facts.span, &mut out);
         }
         self.fractions(facts.fractional, &mut out);
         out.extend(facts.local);
@@ -349,18 +354,25 @@ impl FileLints {
         }
     }
 
-    fn repeats(
-        &mut self,
-        line: u32,
-        (forward, backward): (u64, u64),
-        span: Span,
-        out: &mut Vec<Diagnostic>,
-    ) {
-        let earlier = match (self.seen.get(&forward), self.seen.get(&backward)) {
-            (Some(line), _) => Some((*line, "a multiple")),
-            (None, Some(line)) => Some((*line, "the reverse")),
-            (None, None) => None,
-        };
+    fn repeats(&mut self, line: u32, repeat: Repeat, span: Span, out: &mut Vec<Diagnostic>) {
+        // The hashes may collide (and wrap by design): they only pick the
+        // candidates, and the nets themselves decide.
+        let earlier = [repeat.forward, repeat.backward]
+            .iter()
+            .filter_map(|h| self.seen.get(h))
+            .flatten()
+            .find_map(|(first, net)| {
+                proportional(net, &repeat.net).map(|same_way| {
+                    (
+                        *first,
+                        if same_way {
+                            "a multiple"
+                        } else {
+                            "the reverse"
+                        },
+                    )
+                })
+            });
         if let Some((first, what)) = earlier {
             out.push(
                 Diagnostic::new(
@@ -375,7 +387,10 @@ impl FileLints {
             return;
         }
         if self.seen.len() < REPEAT_TRACKING_LIMIT {
-            self.seen.insert(forward, line);
+            self.seen
+                .entry(repeat.forward)
+                .or_default()
+                .push((line, repeat.net));
         } else if !self.repeat_limit_noted {
             self.repeat_limit_noted = true;
             let mut note = Diagnostic::new(
@@ -573,51 +588,126 @@ fn entity_hash(term: &Term) -> Option<u64> {
     Some(h.finish())
 }
 
-/// Hashes of the reaction's net stoichiometry scaled to a canonical size,
-/// forwards and reversed: equal hashes mean a multiple or the reverse.
-fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
-    let mut net: Vec<(u64, Q)> = Vec::with_capacity(reaction.left.len() + reaction.right.len());
+/// What a term stands for, exactly: spelling, spans and the order of a
+/// compound's atoms or an associate's parts do not matter. The repeat rule
+/// compares these once hashes have found a candidate.
+#[derive(Debug, Clone, PartialEq, Eq)]
+enum Thing {
+    Species(SpeciesKey),
+    /// Atoms sorted, and the phase.
+    Compound(Vec<(u8, Q)>, Option<Phase>),
+    /// Species parts with their coefficients, sorted, and the declared charge.
+    Associate(Vec<(SpeciesKey, Q)>, Option<i32>),
+}
+
+impl Thing {
+    /// The same identity `entity_hash` hashes; `None` for the perfect crystal.
+    fn of(entity: &Entity) -> Option<Thing> {
+        Some(match entity {
+            Entity::Species(s) => Thing::Species(s.key()),
+            Entity::Compound(c) => {
+                let mut atoms = c.formula.atoms.clone();
+                atoms.sort_unstable();
+                Thing::Compound(atoms, c.phase)
+            }
+            Entity::Associate(a) => {
+                let mut parts: Vec<(SpeciesKey, Q)> = a
+                    .parts
+                    .iter()
+                    .filter_map(|p| match &p.entity {
+                        Entity::Species(s) => Some((s.key(), p.coefficient)),
+                        _ => None,
+                    })
+                    .collect();
+                parts.sort_unstable();
+                Thing::Associate(parts, a.charge)
+            }
+            Entity::Nil => return None,
+        })
+    }
+}
+
+/// A reaction's net stoichiometry: each thing once, with its coefficient
+/// (positive on the right), none zero.
+type Net = Box<[(Thing, Q)]>;
+
+/// A reaction's net stoichiometry with the hashes that find candidates.
+#[derive(Debug, Clone)]
+struct Repeat {
+    forward: u64,
+    backward: u64,
+    net: Net,
+}
+
+/// `Some(true)` when `b` is a positive multiple of `a`, `Some(false)` when a
+/// negative one (the reverse), `None` otherwise. Exact, whatever the sizes.
+fn proportional(a: &[(Thing, Q)], b: &[(Thing, Q)]) -> Option<bool> {
+    let ((t0, a0), rest) = a.split_first()?;
+    if a.len() != b.len() {
+        return None;
+    }
+    let b0 = b.iter().find(|(t, _)| t == t0)?.1;
+    for (t, ak) in rest {
+        let bk = b.iter().find(|(u, _)| u == t)?.1;
+        // b = λ a  ⇔  ak·b0 = bk·a0 for every k.
+        if !number::products_equal(*ak, b0, bk, *a0) {
+            return None;
+        }
+    }
+    Some(a0.is_positive() == b0.is_positive())
+}
+
+/// The reaction's net stoichiometry and its hashes scaled to a canonical
+/// size, forwards and reversed: a multiple or the reverse of a reaction has
+/// one of its hashes. `None` when the net leaves the exact range (the checker
+/// reports that) or is empty.
+fn normalized_hashes(reaction: &Reaction) -> Option<Repeat> {
+    let mut net: Vec<(u64, Thing, Q)> =
+        Vec::with_capacity(reaction.left.len() + reaction.right.len());
     for (right, term) in reaction.terms() {
-        let Some(key) = entity_hash(term) else {
+        let (Some(key), Some(thing)) = (entity_hash(term), Thing::of(&term.entity)) else {
             continue;
         };
         let signed = if right {
             term.coefficient
         } else {
-            -term.coefficient
+            term.coefficient.checked_neg().ok()?
         };
-        match net.iter_mut().find(|(k, _)| *k == key) {
-            Some((_, q)) => *q += signed,
-            None => net.push((key, signed)),
+        match net.iter_mut().find(|(k, t, _)| *k == key && *t == thing) {
+            Some((_, _, q)) => *q = number::add(*q, signed).ok()?,
+            None => net.push((key, thing, signed)),
         }
     }
-    net.retain(|(_, q)| *q != Q::from_integer(0));
-    net.sort_unstable_by_key(|(k, _)| *k);
-    let first = net.first()?.1;
-    // Scale by the size of the first coefficient, keeping signs: a reversed
-    // reaction then hashes as the negation of the original.
-    let scale = if first < Q::from_integer(0) {
-        -first
-    } else {
-        first
-    };
-    // Dividing by the first coefficient fixes the scale; its sign says which
-    // way round the reaction is written.
+    net.retain(|(_, _, q)| *q != Q::from_integer(0));
+    net.sort_unstable_by_key(|(k, _, _)| *k);
+    // Scale by the size of the first coefficient: a reversed reaction then
+    // hashes as the negation of the original.
+    let scale = net.first()?.2.checked_abs().ok()?;
     let hash = |sign: i64| {
         let mut h = fnv();
-        for (key, q) in &net {
+        for (key, _, q) in &net {
             h.write_u64(*key);
-            let ratio = if q.is_integer() && scale.is_integer() && q.numer() % scale.numer() == 0 {
-                Q::from_integer(q.numer() / scale.numer())
-            } else {
-                q / scale
-            };
-            h.write_i64(ratio.numer().wrapping_mul(sign));
-            h.write_i64(*ratio.denom());
+            // The size of q/scale, exact, or a mark when it does not fit in
+            // i64 parts (the same for every multiple, since the quotient is
+            // the same number); the sign apart, so the reverse negates it.
+            match q.checked_abs().and_then(|m| m.checked_div(scale)) {
+                Ok(ratio) => {
+                    h.write_i64(*ratio.numer());
+                    h.write_i64(*ratio.denom());
+                }
+                Err(_) => h.write_u8(0xff),
+            }
+            // (−1, 0 or 1) × ±1 cannot overflow.
+            h.write_i64(q.numer().signum().wrapping_mul(sign));
         }
         h.finish()
     };
-    Some((hash(1), hash(-1)))
+    let (forward, backward) = (hash(1), hash(-1));
+    Some(Repeat {
+        forward,
+        backward,
+        net: net.into_iter().map(|(_, t, q)| (t, q)).collect(),
+    })
 }
 
 /// Vacancies and interstitials written without a mark on a charged site.
@@ -627,15 +717,18 @@ fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>)
             return;
         }
         let usual = match (&species.occupant, &species.site) {
-            (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => match host
-                .lookup(*element, label.as_deref())
-            {
-                SiteLookup::Found(i) => {
-                    let charge = -host.sublattices[i].charge;
-                    (charge != Q::from_integer(0) && charge.is_integer()).then(|| *charge.numer())
+            (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => {
+                match host.lookup(*element, label.as_deref()) {
+                    SiteLookup::Found(i) => {
+                        let charge = host.sublattices[i].charge.checked_neg().ok();
+                        charge.and_then(|charge| {
+                            (charge != Q::from_integer(0) && charge.is_integer())
+                                .then(|| *charge.numer())
+                        })
+                    }
+                    _ => None,
                 }
-                _ => None,
-            },
+            }
             (Occupant::Atoms { formula, .. }, Some(Site::Interstitial)) => formula
                 .single_element()
                 .and_then(|z| host.sublattices.iter().find(|s| s.element == z))
