@@ -6,6 +6,8 @@
 //! are inferred from the usual oxidation states when not given; an ambiguous
 //! formula is an error that asks for them, never a guess.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;
 use crate::base::number::{self, Q};
@@ -74,18 +76,21 @@ impl Host {
     /// `host = formula [ "sites" site-decl { "," site-decl } ] ;`
     pub fn parse(source: &str, within: Span) -> Result<Host, Vec<Diagnostic>> {
         let text = &source[within.clone()];
-        let lead = text.len() - text.trim_start().len();
+        let lead = text.len().saturating_sub(text.trim_start().len());
         let text = text.trim();
-        let start = within.start + lead;
+        let start = byte_at(within.start, lead);
         let (formula_part, sites_part) =
             match text.find(" sites ").or_else(|| text.find("\tsites ")) {
-                Some(i) => (&text[..i], Some((start + i + 7, &text[i + 7..]))),
+                Some(i) => {
+                    let after = byte_at(i, " sites ".len());
+                    (&text[..i], Some((byte_at(start, after), &text[after..])))
+                }
                 None => match text.strip_suffix(" sites") {
-                    Some(f) => (f, Some((start + text.len(), ""))),
+                    Some(f) => (f, Some((byte_at(start, text.len()), ""))),
                     None => (text, None),
                 },
             };
-        let formula_span = start..start + formula_part.trim_end().len();
+        let formula_span = start..byte_at(start, formula_part.trim_end().len());
         if formula_span.is_empty() {
             return Err(vec![
                 Diagnostic::new(Code::HostFormula, within, "the host has no formula")
@@ -196,6 +201,12 @@ fn merge(formula: Formula) -> Result<Formula, number::Overflow> {
         }
     }
     Ok(Formula { atoms })
+}
+
+/// `at + len` for byte offsets within one source text: the sum is at most
+/// the text's length, so it never saturates.
+fn byte_at(at: usize, len: usize) -> usize {
+    at.saturating_add(len)
 }
 
 /// An H201 at `span` saying that `what` left the exact range.
@@ -311,7 +322,8 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
                 solutions.push(index.iter().zip(&options).map(|(i, o)| o[*i]).collect());
             }
             for k in 0..index.len() {
-                index[k] += 1;
+                // An index into a list of at most a few oxidation states.
+                index[k] = index[k].saturating_add(1);
                 if index[k] < options[k].len() {
                     continue 'outer;
                 }
@@ -397,10 +409,11 @@ fn explicit_sites(
     let mut sites: Vec<(Sublattice, Span, bool)> = Vec::new();
     let mut at = offset;
     for entry in decl.split(',') {
-        let span_all = at..at + entry.len();
-        at += entry.len() + 1;
-        let lead = entry.len() - entry.trim_start().len();
-        let entry_span = span_all.start + lead..span_all.start + lead + entry.trim().len();
+        let span_all = at..byte_at(at, entry.len());
+        at = byte_at(span_all.end, 1);
+        let lead = entry.len().saturating_sub(entry.trim_start().len());
+        let entry_start = byte_at(span_all.start, lead);
+        let entry_span = entry_start..byte_at(entry_start, entry.trim().len());
         let words: Vec<&str> = entry.split_whitespace().collect();
         let bad = |msg: String| {
             Diagnostic::new(Code::HostFormula, entry_span.clone(), msg).with_help(
@@ -557,7 +570,7 @@ fn explicit_sites(
             diags.push(
                 Diagnostic::new(
                     Code::HostFormula,
-                    offset..offset + decl.len(),
+                    offset..self::byte_at(offset, decl.len()),
                     "the declared charges times site counts add up to more than Lacuna holds exactly (about 9.2e18)",
                 )
                 .with_help("formal charges times site counts must add up to zero; use smaller site counts"),
@@ -569,7 +582,7 @@ fn explicit_sites(
         diags.push(
             Diagnostic::new(
                 Code::HostFormula,
-                offset..offset + decl.len(),
+                offset..self::byte_at(offset, decl.len()),
                 format!(
                     "the declared charges leave the formula unit with charge {}",
                     number::to_plain(net)

@@ -138,8 +138,8 @@ pub fn binary(cation: u8, cation_charge: i64, anion: u8, anion_charge: i64) -> O
         return None;
     }
     let g = cation_charge.gcd(&anion_charge);
-    let cations = -anion_charge / g;
-    let anions = cation_charge / g;
+    let cations = anion_charge.checked_neg()?.checked_div(g)?;
+    let anions = cation_charge.checked_div(g)?;
     Some(Formula {
         atoms: vec![
             (cation, Q::from_integer(cations)),

@@ -143,14 +143,19 @@ impl System<'_> {
         }
         let mut best_pair: Option<((bool, bool, u8), Law, Law)> = None;
         for (i, a) in groups.iter().enumerate() {
-            for b in &groups[i + 1..] {
+            for b in groups[i..].iter().skip(1) {
                 let basis = nullspace(&self.matrix.without_rows(&rows_of(&[*a, *b])))?;
                 let Some(v) = basis.first() else { continue };
                 let mut v = v.clone();
                 orient(&mut v);
                 let full = v.iter().all(|x| *x != 0);
                 let consistent = v.iter().all(|x| *x > 0);
-                let key = (!(full && consistent), !full, law_order(*a) + law_order(*b));
+                // Orders are at most 2, so the sum cannot saturate.
+                let key = (
+                    !(full && consistent),
+                    !full,
+                    law_order(*a).saturating_add(law_order(*b)),
+                );
                 if best_pair.as_ref().is_none_or(|(k, _, _)| key < *k) {
                     best_pair = Some((key, *a, *b));
                 }
@@ -244,7 +249,8 @@ impl System<'_> {
             };
             let n = balanced.terms.len();
             let clean = balanced.terms.iter().enumerate().all(|(i, t)| {
-                t.coefficient > Q::from_integer(0) && (i + 1 == n || t.side == t.written)
+                t.coefficient > Q::from_integer(0)
+                    && (Some(i) == n.checked_sub(1) || t.side == t.written)
             });
             if !clean {
                 continue;

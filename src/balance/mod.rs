@@ -11,6 +11,8 @@
 //! integer entries, so the balanced reactions are the integer nullspace of a
 //! small matrix (the `matrix` module). Everything is exact: no floating point.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod build;
 mod explain;
 mod matrix;
@@ -417,7 +419,8 @@ impl<'r> System<'r> {
             if term.entity == Entity::Nil {
                 continue;
             }
-            let input = unknowns.len() + diagnostics.len();
+            // A count of the terms read so far: far below usize::MAX.
+            let input = unknowns.len().saturating_add(diagnostics.len());
             match content_of(&term.entity, host, &term.span) {
                 Ok(content) => {
                     let gas =
@@ -585,13 +588,14 @@ impl<'r> System<'r> {
                 r
             })
             .collect();
+        let width = n.checked_add(1).ok_or(TooLarge)?;
         for &(j, c) in fixed {
-            let mut row = vec![0i64; n + 1];
+            let mut row = vec![0i64; width];
             row[j] = *c.denom();
-            row[n] = -*c.numer();
+            row[n] = c.numer().checked_neg().ok_or(TooLarge)?;
             rows.push(row);
         }
-        let augmented = Matrix::new(rows, n + 1);
+        let augmented = Matrix::new(rows, width);
         let basis = nullspace(&augmented)?;
         let Some(with_scale) = basis.iter().position(|v| v[n] != 0) else {
             return Ok(none(self.conflict(fixed)?));
@@ -608,9 +612,18 @@ impl<'r> System<'r> {
             }
             let mut h = Vec::with_capacity(n);
             for j in 0..n {
-                let value =
-                    i128::from(w[j]) * i128::from(t) - i128::from(particular[j]) * i128::from(w[n]);
-                h.push(i64::try_from(value).map_err(|_| TooLarge)?);
+                // Products of two i64 fit in i128; the difference is checked.
+                let value = i128::from(w[j])
+                    .checked_mul(i128::from(t))
+                    .zip(i128::from(particular[j]).checked_mul(i128::from(w[n])))
+                    .and_then(|(a, b)| a.checked_sub(b))
+                    .ok_or(TooLarge)?;
+                // i64::MIN is refused as in `nullspace`: every entry has a negative.
+                let value = i64::try_from(value)
+                    .ok()
+                    .filter(|v| *v != i64::MIN)
+                    .ok_or(TooLarge)?;
+                h.push(value);
             }
             primitive(&mut h);
             if h.iter().any(|x| *x != 0) {
@@ -680,7 +693,8 @@ impl<'r> System<'r> {
     }
 
     fn several(&self, reactions: Vec<Vec<Q>>, fixed: Option<&[(usize, Q)]>) -> Outcome {
-        let k = reactions.len() - usize::from(fixed.is_some());
+        // With fixed coefficients the list starts with the particular solution.
+        let k = reactions.len().saturating_sub(usize::from(fixed.is_some()));
         let rank = rank(&self.matrix).unwrap_or(0);
         let support = |v: &Vec<Q>| -> Vec<usize> {
             (0..v.len())
@@ -839,7 +853,9 @@ fn orient(v: &mut [i64]) {
     let first_negative = v.iter().find(|x| **x != 0).is_some_and(|x| *x < 0);
     if negative > positive || (negative == positive && first_negative) {
         for x in v.iter_mut() {
-            *x = -*x;
+            // Entries come from `nullspace` and `solve_fixed`, which refuse
+            // i64::MIN, so the negation is exact (never saturates).
+            *x = x.saturating_neg();
         }
     }
 }
@@ -891,16 +907,18 @@ fn circuits(m: &Matrix, k: usize) -> Result<Vec<Vec<i64>>, TooLarge> {
             }
         }
         // Next combination in lexicographic order.
+        // Indices stay below n and zeroed ≤ n, so the saturating steps
+        // below never saturate.
         let mut i = zeroed;
         loop {
-            if i == 0 {
+            let Some(previous) = i.checked_sub(1) else {
                 return Ok(found);
-            }
-            i -= 1;
-            if combo[i] < n - zeroed + i {
-                combo[i] += 1;
-                for j in i + 1..zeroed {
-                    combo[j] = combo[j - 1] + 1;
+            };
+            i = previous;
+            if combo[i] < n.saturating_sub(zeroed).saturating_add(i) {
+                combo[i] = combo[i].saturating_add(1);
+                for j in i.saturating_add(1)..zeroed {
+                    combo[j] = combo[j.saturating_sub(1)].saturating_add(1);
                 }
                 break;
             }
@@ -911,7 +929,11 @@ fn circuits(m: &Matrix, k: usize) -> Result<Vec<Vec<i64>>, TooLarge> {
 fn binomial(n: usize, k: usize) -> usize {
     let mut r: usize = 1;
     for i in 0..k {
-        r = r.saturating_mul(n - i) / (i + 1);
+        // i < k ≤ n; the divisor is at least 1.
+        r = r
+            .saturating_mul(n.saturating_sub(i))
+            .checked_div(i.saturating_add(1))
+            .unwrap_or(usize::MAX);
     }
     r
 }

@@ -96,8 +96,8 @@ pub fn write_outcome(
                 "{} independent balanced reactions; every combination of them balances:",
                 outcome.reactions.len()
             )?;
-            for (i, b) in outcome.reactions.iter().enumerate() {
-                writeln!(out, "  {}. {}", i + 1, palette.strong(&shown(b)))?;
+            for (i, b) in (1..).zip(&outcome.reactions) {
+                writeln!(out, "  {i}. {}", palette.strong(&shown(b)))?;
             }
         }
         Status::None => {}

@@ -4,6 +4,8 @@
 //! Arithmetic goes through the checked helpers here, so an overflow becomes an
 //! error the caller reports instead of a wrapped, silently wrong number.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use num_bigint::BigInt;
 use num_integer::Integer;
 use num_rational::{BigRational, Ratio};
@@ -475,7 +477,7 @@ pub fn parse_decimal(text: &str) -> Result<Q, NumberError> {
     for b in whole.bytes().chain(frac.bytes()) {
         numer = numer
             .checked_mul(10)
-            .and_then(|n| n.checked_add(i64::from(b - b'0')))
+            .and_then(|n| n.checked_add(i64::from(char::from(b).to_digit(10)?)))
             .ok_or(NumberError::TooLarge)?;
     }
     let denom = u32::try_from(frac.len())

@@ -4,6 +4,8 @@
 //! with the balance flags, the numbers behind them and diagnostics. Pure:
 //! no I/O, no colour, no knowledge of where the text came from.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod rules;
 
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
@@ -311,7 +313,7 @@ impl Checker<'_> {
             }
             Occupant::Vacancy(crate::notation::VacancySpelling::Bare) if self.vanadium => {
                 self.push(
-                    Diagnostic::new(Code::AmbiguousV, s.span.start..s.span.start + 1, "`V` could be vanadium or a vacancy here: vanadium occurs in this host or reaction")
+                    Diagnostic::new(Code::AmbiguousV, s.span.start..s.span.start.saturating_add(1), "`V` could be vanadium or a vacancy here: vanadium occurs in this host or reaction")
                         .with_label("vanadium or vacancy?")
                         .with_help(format!("for a vacancy write `Vac{rest}` or `□{rest}`; for vanadium write `el:V{rest}`", rest = &render_species(s, Style::Unicode)[1..])),
                 );
@@ -478,10 +480,14 @@ impl Checker<'_> {
             .iter()
             .copied()
             .filter(|c| *c != 0)
-            .min_by_key(|c| (i64::from(*c) - *site_charge.numer()).abs())
+            .min_by_key(|c| i64::from(*c).abs_diff(*site_charge.numer()))
             .map(|common| {
                 let mut fixed = s.clone();
-                fixed.charge = i32::from(common) - i32::try_from(*site_charge.numer()).unwrap_or(0);
+                // An i8 state minus a site charge that fits i32 cannot leave i64;
+                // the result is clamped into i32 like the site charge above.
+                let site = i64::from(i32::try_from(*site_charge.numer()).unwrap_or(0));
+                let charge = i64::from(common).saturating_sub(site);
+                fixed.charge = i32::try_from(charge).unwrap_or(0);
                 format!(
                     "{} on this site is {}",
                     ion_text(element.symbol, common),
@@ -547,7 +553,8 @@ impl Checker<'_> {
                     table
                         .elements
                         .push((z, Q::from_integer(0), Q::from_integer(0)));
-                    table.elements.len() - 1
+                    // Just pushed: the vector is not empty.
+                    table.elements.len().saturating_sub(1)
                 }
             };
             let row = &mut table.elements[index];
@@ -856,7 +863,7 @@ fn ion_text(symbol: &str, state: i8) -> String {
         1 => format!("{symbol}+"),
         -1 => format!("{symbol}−"),
         s if s > 0 => format!("{symbol}{s}+"),
-        s => format!("{symbol}{}−", -s),
+        s => format!("{symbol}{}−", s.unsigned_abs()),
     }
 }
 

@@ -152,7 +152,7 @@ fn allowed_on_line(line_text: &str) -> Vec<Code> {
     let Some(at) = line_text.find(ALLOW_COMMENT) else {
         return Vec::new();
     };
-    line_text[at + ALLOW_COMMENT.len()..]
+    line_text[at..][ALLOW_COMMENT.len()..]
         .split(|c: char| c.is_whitespace() || c == ',')
         .filter_map(Code::from_str_id)
         .collect()
@@ -407,7 +407,8 @@ impl FileLints {
 
     fn fractions(&mut self, fractional: Option<Span>, out: &mut Vec<Diagnostic>) {
         match fractional {
-            None => self.integer_reactions += 1,
+            // Counts of reactions in one file: u32 saturates, never wraps.
+            None => self.integer_reactions = self.integer_reactions.saturating_add(1),
             Some(span) => {
                 if self.integer_reactions > self.fractional_reactions {
                     out.push(
@@ -415,7 +416,7 @@ impl FileLints {
                             .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
                     );
                 }
-                self.fractional_reactions += 1;
+                self.fractional_reactions = self.fractional_reactions.saturating_add(1);
             }
         }
     }
@@ -663,7 +664,7 @@ fn proportional(a: &[(Thing, Q)], b: &[(Thing, Q)]) -> Option<bool> {
 /// reports that) or is empty.
 fn normalized_hashes(reaction: &Reaction) -> Option<Repeat> {
     let mut net: Vec<(u64, Thing, Q)> =
-        Vec::with_capacity(reaction.left.len() + reaction.right.len());
+        Vec::with_capacity(reaction.left.len().saturating_add(reaction.right.len()));
     for (right, term) in reaction.terms() {
         let (Some(key), Some(thing)) = (entity_hash(term), Thing::of(&term.entity)) else {
             continue;
@@ -762,7 +763,7 @@ mod tests {
         let mut found = Vec::new();
         for (i, text) in lines.iter().enumerate() {
             let (reaction, _) = parse_reaction(text, 0..text.len());
-            let line = i as u32 + 1;
+            let line = u32::try_from(i).expect("few lines").saturating_add(1);
             for d in lints.reaction(line, None, &reaction.expect("parses"), Some(&host)) {
                 found.push((line, d.code.as_str()));
             }

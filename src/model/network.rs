@@ -17,6 +17,8 @@
 //! span it. Anything else (dependent equilibria, a constraint the reactions
 //! break, a species nothing pins down) is a `NetworkError`.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use crate::base::linalg::{self, Matrix, R};
 use crate::base::number::{Overflow, Q};
 use num_traits::Zero;

@@ -5,6 +5,8 @@
 //! why the text is not notation. Meaning (does it balance, is the charge
 //! plausible) is the checker's business, not the parser's.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod latex_input;
 mod parse;
 mod render;
