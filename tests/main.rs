@@ -7,6 +7,7 @@ mod check_cli;
 mod docs;
 mod dope;
 mod equilibrium_properties;
+mod exact_numbers;
 mod fit;
 mod generated_reactions;
 mod hostile;

@@ -541,6 +541,138 @@ mod tests {
         assert_eq!(add(Q::new(1, 2), Q::new(1, 3)), Ok(Q::new(5, 6)));
     }
 
+    // The edges of the i64 range. source: common practice (two's complement
+    // i64 holds -2^63 ..= 2^63 - 1, so -i64::MIN does not exist).
+    #[test]
+    fn overflow_at_the_edges() {
+        let max = int(i64::MAX);
+        let min = int(i64::MIN);
+        assert_eq!(add(max, int(1)), Err(Overflow));
+        assert_eq!(add(max, int(0)), Ok(max));
+        assert_eq!(sub(min, int(1)), Err(Overflow));
+        assert_eq!(sub(min, int(0)), Ok(min));
+        assert_eq!(add(min, max), Ok(int(-1)));
+        assert_eq!(neg(min), Err(Overflow));
+        assert_eq!(neg(max), Ok(int(-i64::MAX)));
+        assert_eq!(min.checked_abs(), Err(Overflow));
+        assert_eq!(mul(min, int(-1)), Err(Overflow));
+        assert_eq!(mul(min, int(1)), Ok(min));
+        assert_eq!(div(min, int(-1)), Err(Overflow));
+        assert_eq!(div(int(1), int(0)), Err(Overflow));
+        assert_eq!(min.checked_recip(), Err(Overflow));
+        assert_eq!(max.checked_recip(), Ok(Q::new(1, i64::MAX)));
+        // Fractions whose cross products leave i64 but whose result fits:
+        // exact, not an error.
+        let third = Q::new(i64::MAX, 3 * 1_000_000_007);
+        assert_eq!(sub(third, third), Ok(int(0)));
+        assert_eq!(
+            add(Q::new(1, 3_037_000_499), Q::new(1, 3_037_000_499)),
+            Ok(Q::new(2, 3_037_000_499))
+        );
+        // Denominators whose product leaves i64: an error, never a wrap.
+        assert_eq!(
+            add(Q::new(1, 3_037_000_499), Q::new(1, 3_037_000_507)),
+            Err(Overflow)
+        );
+        assert_eq!(Q::checked_new(i64::MIN, -1), None);
+        assert_eq!(Q::checked_new(1, 0), None);
+        assert_eq!(Q::checked_new(6, -4), Some(Q::new(-3, 2)));
+    }
+
+    #[test]
+    fn sums_fail_only_when_the_result_does_not_fit() {
+        let max = int(i64::MAX);
+        // The partial sum leaves i64, the total comes back: still exact.
+        assert_eq!(sum([max, int(1), int(-1)]), Ok(max));
+        assert_eq!(sum([max, max, int(-i64::MAX)]), Ok(max));
+        assert_eq!(sum([max, int(1)]), Err(Overflow));
+        // The measured case: two site counts of 2^62 add up to 2^63.
+        let half = int(4_611_686_018_427_387_904);
+        assert_eq!(sum([half, half]), Err(Overflow));
+        assert_eq!(sum([half, half, int(-1)]), Ok(max));
+        assert_eq!(sum(std::iter::empty()), Ok(int(0)));
+        assert_eq!(
+            sum_checked([Ok(int(1)), Err(Overflow), Ok(int(2))]),
+            Err(Overflow)
+        );
+    }
+
+    #[test]
+    fn ordering_is_exact_near_the_edges() {
+        assert!(Q::new(i64::MAX, i64::MAX - 1) < Q::new(i64::MAX - 1, i64::MAX - 2));
+        assert!(Q::new(i64::MAX - 1, i64::MAX) < int(1));
+        assert!(int(i64::MIN) < Q::new(i64::MIN + 1, 1));
+        assert!(Q::new(-1, i64::MAX) > int(i64::MIN));
+        assert!(products_equal(int(i64::MAX), int(2), int(2), int(i64::MAX)));
+        assert!(!products_equal(
+            int(i64::MAX),
+            int(2),
+            int(i64::MAX),
+            int(3)
+        ));
+    }
+
+    fn big(q: Q) -> BigRational {
+        q.to_big()
+    }
+
+    /// Values near the edges as often as small ones.
+    fn any_q() -> impl proptest::strategy::Strategy<Value = Q> {
+        use proptest::prelude::*;
+        let part = prop_oneof![
+            -1000i64..1000,
+            Just(i64::MAX),
+            Just(i64::MIN),
+            (i64::MAX - 1000)..=i64::MAX,
+            i64::MIN..(i64::MIN + 1000),
+            any::<i64>(),
+        ];
+        let denom = prop_oneof![Just(1i64), 1i64..100, 1i64..=i64::MAX];
+        (part, denom).prop_filter_map("in range", |(n, d)| Q::checked_new(n, d))
+    }
+
+    proptest::proptest! {
+        // source: num-bigint arbitrary-precision arithmetic (the reference
+        // never overflows, so it gives the true sum to compare with).
+        #[test]
+        fn checked_sums_match_big_integer_sums(items in proptest::collection::vec(any_q(), 0..6)) {
+            let mut reference = BigRational::from_integer(BigInt::from(0));
+            for q in &items {
+                reference += big(*q);
+            }
+            let fits = reference.numer().to_i64().is_some() && reference.denom().to_i64().is_some();
+            match sum(items.iter().copied()) {
+                Ok(total) => {
+                    proptest::prop_assert!(fits);
+                    proptest::prop_assert_eq!(big(total), reference);
+                }
+                Err(Overflow) => proptest::prop_assert!(!fits, "{} fits", reference),
+            }
+        }
+
+        // source: num-bigint arbitrary-precision arithmetic.
+        #[test]
+        fn checked_steps_match_big_integer_steps(a in any_q(), b in any_q()) {
+            let fits = |r: &BigRational| r.numer().to_i64().is_some() && r.denom().to_i64().is_some();
+            let cases = [
+                (a.checked_add(b), Some(big(a) + big(b))),
+                (a.checked_sub(b), Some(big(a) - big(b))),
+                (a.checked_mul(b), Some(big(a) * big(b))),
+                (a.checked_div(b), (!b.is_zero()).then(|| big(a) / big(b))),
+                (a.checked_neg(), Some(-big(a))),
+            ];
+            for (got, want) in cases {
+                match (got, want) {
+                    (Ok(q), Some(r)) => proptest::prop_assert_eq!(big(q), r),
+                    (Err(Overflow), Some(r)) => proptest::prop_assert!(!fits(&r), "{} fits", r),
+                    (Err(Overflow), None) => {}
+                    (Ok(q), None) => proptest::prop_assert!(false, "{:?} divided by zero", q),
+                }
+            }
+            proptest::prop_assert_eq!(a.cmp(&b), big(a).cmp(&big(b)));
+        }
+    }
+
     #[test]
     fn coefficient_text_forms() {
         assert_eq!(coefficient_text(int(1), true), "");

@@ -69,14 +69,15 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     checker.vanadium =
         host.is_some_and(|h| h.contains_element(VANADIUM)) || mentions_vanadium(reaction);
     let mut table = BalanceTable::default();
-    let mut overflow = false;
+    // The first term at which a sum left the exact range.
+    let mut overflow: Option<Span> = None;
     for (right, term) in reaction.terms() {
         checker.validate_term(term);
         if checker
             .accumulate(&mut table, term, Q::from_integer(1), right)
             .is_err()
         {
-            overflow = true;
+            overflow.get_or_insert_with(|| term.span.clone());
         }
     }
     let site_holds = if checker.sites_known {
@@ -84,12 +85,15 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     } else {
         Ok(None)
     };
-    if overflow || site_holds.is_err() {
+    if overflow.is_some() || site_holds.is_err() {
         // The sums are not trustworthy: report that alone, and no balance.
-        checker.diags.push(
-            Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range")
-                .with_help("use smaller coefficients; the balances are exact, so they cannot be evaluated approximately"),
-        );
+        let mut diagnostic = Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range (about 9.2e18)")
+            .with_help("use smaller coefficients; the balances are exact, so they cannot be evaluated approximately");
+        if let Some(span) = overflow {
+            diagnostic.span = span;
+            diagnostic.label = Some("the sums leave the exact range at this term".into());
+        }
+        checker.diags.push(diagnostic);
         return Verdict {
             balance: Balance {
                 mass: false,

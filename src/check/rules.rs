@@ -757,6 +757,73 @@ mod tests {
     use super::*;
     use crate::notation::parse_reaction;
 
+    fn repeat_of(text: &str) -> Repeat {
+        let (reaction, _) = parse_reaction(text, 0..text.len());
+        normalized_hashes(&reaction.expect("parses")).expect("a net stoichiometry")
+    }
+
+    /// A hash match alone never reports: the nets are compared. Collisions
+    /// are forced by giving unrelated reactions the same hashes.
+    #[test]
+    fn a_hash_collision_is_not_a_repeat() {
+        let mut lints = FileLints::default();
+        let mut out = Vec::new();
+        let first = repeat_of("O_O -> V_O.. + 2e' + 1/2 O2(g)");
+        let (forward, backward) = (first.forward, first.backward);
+        lints.repeats(1, first, 0..1, &mut out);
+        // Different reaction, same hashes (as a collision would give).
+        let mut other = repeat_of("nil -> e' + h.");
+        other.forward = forward;
+        other.backward = backward;
+        lints.repeats(2, other, 0..1, &mut out);
+        // Same stoichiometry up to a factor of 3: proportional, reported
+        // whatever hash it carries among the candidates.
+        let mut tripled = repeat_of("3O_O -> 3V_O.. + 6e' + 3/2 O2(g)");
+        assert_eq!(tripled.forward, forward, "a multiple hashes alike");
+        tripled.backward = 12345;
+        lints.repeats(3, tripled, 0..1, &mut out);
+        let reversed = repeat_of("V_O.. + 2e' + 1/2 O2(g) -> O_O");
+        assert_eq!(
+            reversed.backward, forward,
+            "the reverse hashes as the negation"
+        );
+        lints.repeats(4, reversed, 0..1, &mut out);
+        let messages: Vec<&str> = out.iter().map(|d| d.message.as_str()).collect();
+        assert_eq!(
+            messages,
+            vec![
+                "this reaction is a multiple of the one on line 1",
+                "this reaction is the reverse of the one on line 1"
+            ]
+        );
+    }
+
+    // The measured case: coefficients near 5e18 whose net would wrap. The net
+    // leaves the exact range, so the rule stays silent (the checker reports
+    // the overflow) instead of matching a wrapped number.
+    #[test]
+    fn coefficients_near_the_limit_are_not_repeats() {
+        let lines = [
+            "nil -> 8446744073709551616 e' + 8446744073709551616 h.",
+            "5000000000000000000 e' + 5000000000000000000 e' + 5000000000000000000 h. + 5000000000000000000 h. -> nil",
+            "nil -> 4611686018427387904 e' + 4611686018427387903 h.",
+            "nil -> 4611686018427387903 e' + 4611686018427387904 h.",
+        ];
+        assert!(
+            lint("ZrO2", &lines).is_empty(),
+            "{:?}",
+            lint("ZrO2", &lines)
+        );
+        assert!(proportional(&repeat_of(lines[2]).net, &repeat_of(lines[3]).net).is_none());
+        assert_eq!(
+            proportional(
+                &repeat_of("nil -> 4611686018427387903 e' + 4611686018427387903 h.").net,
+                &repeat_of("nil -> e' + h.").net
+            ),
+            Some(true)
+        );
+    }
+
     fn lint(host: &str, lines: &[&str]) -> Vec<(u32, &'static str)> {
         let host = Host::from_spec(host).expect("host");
         let mut lints = FileLints::default();
