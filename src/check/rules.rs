@@ -171,8 +171,15 @@ pub struct FileLints {
     /// with the line and the net itself: a hash match is only a candidate,
     /// the nets are compared exactly before anything is reported.
     seen: HashMap<u64, Vec<(u32, Net)>, KeyIsHash>,
-    /// Names seen so far, by hash (bounded memory on huge files).
-    labels: HashMap<NameKey, u32, KeyIsHash>,
+    /// Names seen so far, by hash (bounded memory on huge files): the line
+    /// and where the name's text starts in `label_text`. A hash match is only
+    /// a candidate; the names themselves are compared before L503 or L504.
+    labels: HashMap<NameKey, (u32, u32), KeyIsHash>,
+    /// The first-seen names, each ended by a newline (a name holds none).
+    label_text: String,
+    /// Names that could not go in `labels`: a different name had their hash
+    /// (or `label_text` outgrew u32 offsets). With the line of first use.
+    label_others: Vec<(Box<str>, u32)>,
     /// Names used by model lines: (line, line text, span of the name).
     references: Vec<(u32, String, Span)>,
     integer_reactions: u32,
@@ -268,15 +275,12 @@ impl FileLints {
     ) -> Vec<Diagnostic> {
         let mut out = Vec::new();
         if let Some((key, span)) = facts.label {
-            // One probe of the (large, cache-cold) table per name.
-            match self.labels.entry(NameKey::new(key)) {
-                Entry::Occupied(first) => out.push(
-                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{}` is already used on line {}", name.unwrap_or_default(), first.get()))
+            let name = name.unwrap_or_default();
+            if let Some(first) = self.first_use(key, name, line) {
+                out.push(
+                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
                         .with_help("names identify reactions in models and reports; give this one another name"),
-                ),
-                Entry::Vacant(slot) => {
-                    slot.insert(line);
-                }
+                );
             }
         }
         self.mark_styles(line, facts.marks, &mut out);
@@ -325,7 +329,39 @@ impl FileLints {
     pub fn knows_label(&self, name: &str) -> bool {
         let mut h = fnv();
         h.write(name.as_bytes());
-        self.labels.contains_key(&NameKey::new(h.finish()))
+        let stored = self
+            .labels
+            .get(&NameKey::new(h.finish()))
+            .is_some_and(|(_, at)| stored_name(&self.label_text, *at) == name);
+        stored || self.label_others.iter().any(|(n, _)| &**n == name)
+    }
+
+    /// Records the first use of a name and returns `None`, or returns the
+    /// line of its first use. One probe of the (large, cache-cold) table per
+    /// name; on a hash match the names are compared.
+    fn first_use(&mut self, key: u64, name: &str, line: u32) -> Option<u32> {
+        match self.labels.entry(NameKey::new(key)) {
+            Entry::Occupied(first) => {
+                let (first_line, at) = *first.get();
+                if stored_name(&self.label_text, at) == name {
+                    return Some(first_line);
+                }
+            }
+            Entry::Vacant(slot) => {
+                if let Ok(at) = u32::try_from(self.label_text.len()) {
+                    slot.insert((line, at));
+                    self.label_text.push_str(name);
+                    self.label_text.push('\n');
+                    return None;
+                }
+            }
+        }
+        // A different name with the same hash, or no room for offsets.
+        if let Some((_, first)) = self.label_others.iter().find(|(n, _)| &**n == name) {
+            return Some(*first);
+        }
+        self.label_others.push((name.into(), line));
+        None
     }
 
     fn mark_styles(
@@ -446,9 +482,17 @@ fn for_each_species<'a>(reaction: &'a Reaction, f: &mut dyn FnMut(&'a Species)) 
     }
 }
 
-/// A name's 64-bit hash stored as two halves: with the line number beside
-/// it a table entry takes 12 bytes instead of 16, which matters for files
-/// with a million names.
+/// The name stored at byte `at` of `text` (up to its newline).
+fn stored_name(text: &str, at: u32) -> &str {
+    let at = usize::try_from(at).unwrap_or(usize::MAX);
+    text.get(at..)
+        .and_then(|rest| rest.split('\n').next())
+        .unwrap_or_default()
+}
+
+/// A name's 64-bit hash stored as two halves: with the line number and the
+/// name's offset beside it a table entry takes 16 bytes instead of 24, which
+/// matters for files with a million names.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct NameKey([u32; 2]);
 
@@ -760,6 +804,27 @@ mod tests {
     fn repeat_of(text: &str) -> Repeat {
         let (reaction, _) = parse_reaction(text, 0..text.len());
         normalized_hashes(&reaction.expect("parses")).expect("a net stoichiometry")
+    }
+
+    /// Names are compared after a hash match: a collision is not a duplicate.
+    #[test]
+    fn a_name_hash_collision_is_not_a_duplicate() {
+        let mut lints = FileLints::default();
+        assert_eq!(lints.first_use(7, "red", 1), None);
+        assert_eq!(lints.first_use(7, "ox", 2), None, "same hash, other name");
+        assert_eq!(lints.first_use(7, "ox", 3), Some(2));
+        assert_eq!(lints.first_use(7, "red", 4), Some(1));
+        assert_eq!(lints.first_use(8, "gap", 5), None);
+        assert_eq!(lints.first_use(8, "gap", 6), Some(5));
+        // knows_label hashes for itself: the names stored under key 7 and 8
+        // are not found under their real hashes unless compared.
+        let mut named = FileLints::default();
+        let mut h = fnv();
+        h.write(b"red");
+        assert_eq!(named.first_use(h.finish(), "red", 1), None);
+        assert!(named.knows_label("red"));
+        assert!(!named.knows_label("re"));
+        assert!(!named.knows_label("redd"));
     }
 
     /// A hash match alone never reports: the nets are compared. Collisions
