@@ -21,7 +21,7 @@ use std::fmt;
 /// that returns [`Overflow`] when the exact result does not fit, so a
 /// wrapped number cannot reach the user and unchecked arithmetic does not
 /// compile.
-#[derive(Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Clone, Copy)]
 pub struct Q(Ratio<i64>);
 
 /// A checked arithmetic step overflowed `i64` numerators or denominators.
@@ -42,6 +42,22 @@ impl std::error::Error for Overflow {}
 fn reduce_i128(n: i128, d: i128) -> Result<Q, Overflow> {
     if d == 0 {
         return Err(Overflow);
+    }
+    // The common case in i64, whose gcd is cheaper; i64::MIN is left to the
+    // wide path (its size has no i64 negative).
+    if let (Ok(n), Ok(d)) = (i64::try_from(n), i64::try_from(d)) {
+        if n != i64::MIN && d != i64::MIN {
+            let g = n.gcd(&d);
+            let (mut n, mut d) = (
+                n.checked_div(g).ok_or(Overflow)?,
+                d.checked_div(g).ok_or(Overflow)?,
+            );
+            if d < 0 {
+                n = n.checked_neg().ok_or(Overflow)?;
+                d = d.checked_neg().ok_or(Overflow)?;
+            }
+            return Ok(Q(Ratio::new_raw(n, d)));
+        }
     }
     let g = n.gcd(&d);
     // g > 0 because d != 0; the quotients are exact.
@@ -167,6 +183,9 @@ impl Q {
                 .map(Q::from_integer)
                 .ok_or(Overflow);
         }
+        if let Some((n, den)) = self.narrow_cross(rhs, i64::checked_add) {
+            return reduce_i128(n.into(), den.into());
+        }
         // |a d|, |c b| < 2^126, so neither the products nor the sum overflow i128.
         let n = a
             .checked_mul(d)
@@ -174,8 +193,19 @@ impl Q {
         reduce_i128(n.ok_or(Overflow)?, b.checked_mul(d).ok_or(Overflow)?)
     }
 
+    /// `(a·d ∘ c·b, b·d)` in i64 for `a/b` and `c/d`, when every step fits.
+    fn narrow_cross(self, rhs: Q, op: fn(i64, i64) -> Option<i64>) -> Option<(i64, i64)> {
+        let (a, b) = (*self.numer(), *self.denom());
+        let (c, d) = (*rhs.numer(), *rhs.denom());
+        let n = op(a.checked_mul(d)?, c.checked_mul(b)?)?;
+        Some((n, b.checked_mul(d)?))
+    }
+
     /// `self - rhs`, or `Overflow`.
     pub fn checked_sub(self, rhs: Q) -> Result<Q, Overflow> {
+        if let Some((n, den)) = self.narrow_cross(rhs, i64::checked_sub) {
+            return reduce_i128(n.into(), den.into());
+        }
         let (a, b) = self.wide();
         let (c, d) = rhs.wide();
         let n = a
@@ -203,6 +233,13 @@ impl Q {
 
     /// `self / rhs`, or `Overflow` (also for division by zero).
     pub fn checked_div(self, rhs: Q) -> Result<Q, Overflow> {
+        if self.is_integer() && rhs.is_integer() {
+            // Exact integer quotients stay in i64 (checked: MIN / -1).
+            let (a, c) = (*self.numer(), *rhs.numer());
+            if a.checked_rem(c) == Some(0) {
+                return a.checked_div(c).map(Q::from_integer).ok_or(Overflow);
+            }
+        }
         let (a, b) = self.wide();
         let (c, d) = rhs.wide();
         reduce_i128(
@@ -270,6 +307,23 @@ impl Default for Q {
 impl From<i64> for Q {
     fn from(n: i64) -> Q {
         Q::from_integer(n)
+    }
+}
+
+// Always reduced with a positive denominator: equal values have equal parts,
+// so equality and hashing compare the parts (no arithmetic at all).
+impl PartialEq for Q {
+    fn eq(&self, other: &Q) -> bool {
+        self.numer() == other.numer() && self.denom() == other.denom()
+    }
+}
+
+impl Eq for Q {}
+
+impl std::hash::Hash for Q {
+    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
+        self.numer().hash(state);
+        self.denom().hash(state);
     }
 }
 
