@@ -211,8 +211,9 @@ fn byte_at(at: usize, len: usize) -> usize {
 
 /// An H201 at `span` saying that `what` left the exact range.
 fn too_large(span: Span, what: &str, overflow: number::Overflow) -> Diagnostic {
-    Diagnostic::new(Code::HostFormula, span, format!("{what}: {overflow}"))
-        .with_help("Lacuna keeps counts and charges exact; use smaller counts (site counts per formula unit are usually below 100)")
+    Diagnostic::new(Code::HostFormula, span, format!("{what}: {overflow}")).with_help(
+        "Lacuna keeps counts and charges exact; write the formula unit with smaller counts",
+    )
 }
 
 trait WithSpan {

@@ -93,7 +93,10 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
             diagnostic.span = span;
             diagnostic.label = Some("the sums leave the exact range at this term".into());
         }
-        checker.diags.push(diagnostic);
+        // An associate whose own parts overflowed has said so already.
+        if !checker.diags.iter().any(|d| d.code == Code::Number) {
+            checker.diags.push(diagnostic);
+        }
         return Verdict {
             balance: Balance {
                 mass: false,
