@@ -37,8 +37,10 @@ impl fmt::Display for Overflow {
 impl std::error::Error for Overflow {}
 
 /// `n/d` reduced, with a positive denominator, if it fits in `i64` parts.
-/// Inputs come from products of two `i64`, so they never reach `i128::MIN`
-/// and the negations and divisions below cannot overflow.
+/// A negative `d` comes only from products of two `i64` (far from
+/// `i128::MIN`), so the negations cannot overflow; `n` may be `i128::MIN`
+/// only with a positive `d` (from [`sum`]), and num-integer's gcd handles
+/// that case without overflow (the gcd is then a power of two).
 fn reduce_i128(n: i128, d: i128) -> Result<Q, Overflow> {
     if d == 0 {
         return Err(Overflow);
