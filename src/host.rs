@@ -6,6 +6,8 @@
 //! are inferred from the usual oxidation states when not given; an ambiguous
 //! formula is an error that asks for them, never a guess.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;
 use crate::base::number::{self, Q};
@@ -74,25 +76,34 @@ impl Host {
     /// `host = formula [ "sites" site-decl { "," site-decl } ] ;`
     pub fn parse(source: &str, within: Span) -> Result<Host, Vec<Diagnostic>> {
         let text = &source[within.clone()];
-        let lead = text.len() - text.trim_start().len();
+        let lead = text.len().saturating_sub(text.trim_start().len());
         let text = text.trim();
-        let start = within.start + lead;
+        let start = byte_at(within.start, lead);
         let (formula_part, sites_part) =
             match text.find(" sites ").or_else(|| text.find("\tsites ")) {
-                Some(i) => (&text[..i], Some((start + i + 7, &text[i + 7..]))),
+                Some(i) => {
+                    let after = byte_at(i, " sites ".len());
+                    (&text[..i], Some((byte_at(start, after), &text[after..])))
+                }
                 None => match text.strip_suffix(" sites") {
-                    Some(f) => (f, Some((start + text.len(), ""))),
+                    Some(f) => (f, Some((byte_at(start, text.len()), ""))),
                     None => (text, None),
                 },
             };
-        let formula_span = start..start + formula_part.trim_end().len();
+        let formula_span = start..byte_at(start, formula_part.trim_end().len());
         if formula_span.is_empty() {
             return Err(vec![
                 Diagnostic::new(Code::HostFormula, within, "the host has no formula")
                     .with_help("write a formula such as `host ZrO2`"),
             ]);
         }
-        let formula = merge(parse_formula(source, formula_span.clone())?);
+        let formula = merge(parse_formula(source, formula_span.clone())?).map_err(|o| {
+            vec![too_large(
+                formula_span.clone(),
+                "the element counts of the host formula",
+                o,
+            )]
+        })?;
         if let Some((z, _)) = formula.atoms.iter().find(|(_, n)| *n <= Q::from_integer(0)) {
             return Err(vec![Diagnostic::new(Code::HostFormula, formula_span, format!("{} has a count of zero in the host formula", symbol(*z)))
                 .with_help("every element of a host occurs at least once per formula unit; drop it or give its count")]);
@@ -181,15 +192,28 @@ fn signed(q: Q) -> String {
 }
 
 /// Sums repeated elements (`CH3COOH` style formulas) into one count each.
-fn merge(formula: Formula) -> Formula {
+fn merge(formula: Formula) -> Result<Formula, number::Overflow> {
     let mut atoms: Vec<(u8, Q)> = Vec::new();
     for (z, n) in formula.atoms {
         match atoms.iter_mut().find(|(e, _)| *e == z) {
-            Some((_, m)) => *m += n,
+            Some((_, m)) => *m = number::add(*m, n)?,
             None => atoms.push((z, n)),
         }
     }
-    Formula { atoms }
+    Ok(Formula { atoms })
+}
+
+/// `at + len` for byte offsets within one source text: the sum is at most
+/// the text's length, so it never saturates.
+fn byte_at(at: usize, len: usize) -> usize {
+    at.saturating_add(len)
+}
+
+/// An H201 at `span` saying that `what` left the exact range.
+fn too_large(span: Span, what: &str, overflow: number::Overflow) -> Diagnostic {
+    Diagnostic::new(Code::HostFormula, span, format!("{what}: {overflow}")).with_help(
+        "Lacuna keeps counts and charges exact; write the formula unit with smaller counts",
+    )
 }
 
 trait WithSpan {
@@ -235,7 +259,10 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
     for (z, n) in &formula.atoms {
         match ANIONS.iter().find(|(s, _)| *s == symbol(*z)) {
             Some((_, state)) => {
-                anion_charge += Q::from_integer(*state) * n;
+                anion_charge = Q::from_integer(*state)
+                    .checked_mul(*n)
+                    .and_then(|c| number::add(anion_charge, c))
+                    .map_err(|o| too_large(0..0, "the anion charge of the host formula", o))?;
                 charges.push((*z, Q::from_integer(*state)));
             }
             None => cations.push((*z, *n)),
@@ -283,17 +310,21 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
     if options.iter().all(|o| !o.is_empty()) {
         let mut index = vec![0usize; cations.len()];
         'outer: loop {
-            let sum: Q = cations
-                .iter()
-                .zip(&index)
-                .zip(&options)
-                .map(|(((_, n), i), o)| Q::from_integer(o[*i]) * n)
-                .sum();
-            if sum + anion_charge == Q::from_integer(0) {
+            let sum = number::sum_checked(
+                cations
+                    .iter()
+                    .zip(&index)
+                    .zip(&options)
+                    .map(|(((_, n), i), o)| Q::from_integer(o[*i]).checked_mul(*n))
+                    .chain([Ok(anion_charge)]),
+            );
+            // The sum is exact whenever it fits, so an overflowing one is not zero.
+            if sum == Ok(Q::from_integer(0)) {
                 solutions.push(index.iter().zip(&options).map(|(i, o)| o[*i]).collect());
             }
             for k in 0..index.len() {
-                index[k] += 1;
+                // An index into a list of at most a few oxidation states.
+                index[k] = index[k].saturating_add(1);
                 if index[k] < options[k].len() {
                     continue 'outer;
                 }
@@ -310,7 +341,10 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
         }
         [] => {
             let message = if cations.len() == 1 {
-                let average = -anion_charge / cations[0].1;
+                let average = anion_charge
+                    .checked_neg()
+                    .and_then(|a| a.checked_div(cations[0].1))
+                    .map_err(|o| too_large(0..0, "the average cation charge", o))?;
                 format!(
                     "`{text}` needs {} at an average charge of {}, which is not one of its common oxidation states",
                     symbol(cations[0].0),
@@ -376,10 +410,11 @@ fn explicit_sites(
     let mut sites: Vec<(Sublattice, Span, bool)> = Vec::new();
     let mut at = offset;
     for entry in decl.split(',') {
-        let span_all = at..at + entry.len();
-        at += entry.len() + 1;
-        let lead = entry.len() - entry.trim_start().len();
-        let entry_span = span_all.start + lead..span_all.start + lead + entry.trim().len();
+        let span_all = at..byte_at(at, entry.len());
+        at = byte_at(span_all.end, 1);
+        let lead = entry.len().saturating_sub(entry.trim_start().len());
+        let entry_start = byte_at(span_all.start, lead);
+        let entry_span = entry_start..byte_at(entry_start, entry.trim().len());
         let words: Vec<&str> = entry.split_whitespace().collect();
         let bad = |msg: String| {
             Diagnostic::new(Code::HostFormula, entry_span.clone(), msg).with_help(
@@ -427,12 +462,26 @@ fn explicit_sites(
             None => None,
         };
         let given = count.is_some();
+        let count = match count {
+            Some(q) => q,
+            None => match formula.count(element.z) {
+                Ok(q) => q,
+                Err(o) => {
+                    diags.push(too_large(
+                        entry_span,
+                        "the element's count in the formula",
+                        o,
+                    ));
+                    continue;
+                }
+            },
+        };
         sites.push((
             Sublattice {
                 element: element.z,
                 label,
                 charge,
-                count: count.unwrap_or(formula.count(element.z)),
+                count,
             },
             entry_span,
             given,
@@ -470,7 +519,30 @@ fn explicit_sites(
             );
             continue;
         }
-        let sum: Q = of.iter().map(|(s, _, _)| s.count).sum();
+        let Ok(sum) = number::sum(of.iter().map(|(s, _, _)| s.count)) else {
+            let counts: Vec<String> = of
+                .iter()
+                .map(|(s, _, _)| number::to_plain(s.count))
+                .collect();
+            let last = of.last().map_or(of[0].1.end, |(_, span, _)| span.end);
+            diags.push(
+                Diagnostic::new(
+                    Code::HostFormula,
+                    of[0].1.start..last,
+                    format!(
+                        "the {} site counts {} add up to more than Lacuna holds exactly (about 9.2e18)",
+                        symbol(*z),
+                        counts.join(" + ")
+                    ),
+                )
+                .with_help(format!(
+                    "the counts of a sublattice are sites per formula unit; make the {} counts add up to {}",
+                    symbol(*z),
+                    number::to_plain(*n)
+                )),
+            );
+            continue;
+        };
         if sum != *n {
             diags.push(Diagnostic::new(
                 Code::HostFormula,
@@ -493,12 +565,25 @@ fn explicit_sites(
             ));
         }
     }
-    let net: Q = sites.iter().map(|(s, _, _)| s.charge * s.count).sum();
+    let net = number::sum_checked(sites.iter().map(|(s, _, _)| s.charge.checked_mul(s.count)));
+    let Ok(net) = net else {
+        if diags.is_empty() {
+            diags.push(
+                Diagnostic::new(
+                    Code::HostFormula,
+                    offset..self::byte_at(offset, decl.len()),
+                    "the declared charges times site counts add up to more than Lacuna holds exactly (about 9.2e18)",
+                )
+                .with_help("formal charges times site counts must add up to zero; use smaller site counts"),
+            );
+        }
+        return Err(diags);
+    };
     if diags.is_empty() && net != Q::from_integer(0) {
         diags.push(
             Diagnostic::new(
                 Code::HostFormula,
-                offset..offset + decl.len(),
+                offset..self::byte_at(offset, decl.len()),
                 format!(
                     "the declared charges leave the formula unit with charge {}",
                     number::to_plain(net)

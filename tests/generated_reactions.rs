@@ -122,7 +122,10 @@ fn species_text(left: &[Term], right: &[Term], scale: Option<i64>) -> String {
                 let mut t = t.clone();
                 match scale {
                     Some(k) => {
-                        t.coefficient *= Q::from_integer(k);
+                        t.coefficient = t
+                            .coefficient
+                            .checked_mul(Q::from_integer(k))
+                            .expect("small coefficients");
                         let c = t.coefficient;
                         t.coefficient = Q::from_integer(1);
                         format!(
@@ -248,7 +251,7 @@ proptest! {
         prop_assert_eq!(outcome.status, Status::Unique, "{}", text);
         let scaled: Vec<(bool, String, Q)> = terms_of(&integer)
             .into_iter()
-            .map(|(s, t, c)| (s, t, c * Q::from_integer(scale)))
+            .map(|(s, t, c)| (s, t, c.checked_mul(Q::from_integer(scale)).expect("small coefficients")))
             .collect();
         prop_assert_eq!(terms_of(&outcome.reactions[0].reaction), scaled);
         // And ignoring the written coefficients gives the smallest integers again.

@@ -9,6 +9,7 @@ mod cross_command;
 mod docs;
 mod dope;
 mod equilibrium_properties;
+mod exact_numbers;
 mod facade;
 mod fit;
 mod generated_reactions;

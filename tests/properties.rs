@@ -188,7 +188,10 @@ fn assemble(h: &Binary, picks: &[(usize, i64, bool)]) -> Reaction {
             terms
                 .iter()
                 .map(|t| Term {
-                    coefficient: t.coefficient * Q::from_integer(*times),
+                    coefficient: t
+                        .coefficient
+                        .checked_mul(Q::from_integer(*times))
+                        .expect("small coefficients"),
                     ..t.clone()
                 })
                 .collect::<Vec<_>>()
@@ -253,7 +256,7 @@ proptest! {
         if change_charge {
             if let Entity::Species(s) = &mut t.entity { s.charge += 1; }
         } else {
-            t.coefficient *= Q::from_integer(2);
+            t.coefficient = t.coefficient.checked_mul(Q::from_integer(2)).expect("small coefficients");
         }
         let text = render_reaction(&broken, Style::Ascii);
         let (parsed, _) = parse_reaction(&text, 0..text.len());

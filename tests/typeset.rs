@@ -532,7 +532,7 @@ fn entity() -> impl Strategy<Value = Entity> {
         1 => (prop::collection::vec(species(), 2..4), any::<bool>(), any::<bool>()).prop_map(|(parts, declare, braces)| {
             let parts: Vec<Term> = parts.into_iter().map(|s| term(Entity::Species(s), Q::from_integer(1))).collect();
             let associate = Associate { parts, charge: None, marks: lacuna::notation::MarkStyle::Ascii, braces, span: 0..0 };
-            let charge = declare.then(|| *associate.parts_charge().numer() as i32);
+            let charge = declare.then(|| *associate.parts_charge().expect("small charges").numer() as i32);
             Entity::Associate(Associate { charge, ..associate })
         }),
     ]

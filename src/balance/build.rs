@@ -65,10 +65,10 @@ impl<'h> Builder<'h> {
     }
 
     /// Element `z` with real charge `real` on sublattice `index`; `None`
-    /// when the effective charge is not an integer.
+    /// when the effective charge is not an integer (or not in range).
     pub fn on_site(&self, z: u8, real: i64, index: usize) -> Option<Species> {
         let sub = self.sublattice(index)?;
-        let effective = Q::from_integer(real) - sub.charge;
+        let effective = Q::from_integer(real).checked_sub(sub.charge).ok()?;
         let charge = integer_charge(effective)?;
         Some(Self::species(
             self.occupant(z),
@@ -90,7 +90,7 @@ impl<'h> Builder<'h> {
     /// The fully ionised vacancy: `V_O••`, `V_Zr′′′′`.
     pub fn vacancy(&self, index: usize) -> Option<Species> {
         let sub = self.sublattice(index)?;
-        let charge = integer_charge(-sub.charge)?;
+        let charge = integer_charge(sub.charge.checked_neg().ok()?)?;
         let spelling = if self.vanadium {
             VacancySpelling::Word
         } else {
@@ -138,8 +138,8 @@ pub fn binary(cation: u8, cation_charge: i64, anion: u8, anion_charge: i64) -> O
         return None;
     }
     let g = cation_charge.gcd(&anion_charge);
-    let cations = -anion_charge / g;
-    let anions = cation_charge / g;
+    let cations = anion_charge.checked_neg()?.checked_div(g)?;
+    let anions = cation_charge.checked_div(g)?;
     Some(Formula {
         atoms: vec![
             (cation, Q::from_integer(cations)),

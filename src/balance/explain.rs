@@ -143,14 +143,19 @@ impl System<'_> {
         }
         let mut best_pair: Option<((bool, bool, u8), Law, Law)> = None;
         for (i, a) in groups.iter().enumerate() {
-            for b in &groups[i + 1..] {
+            for b in groups[i..].iter().skip(1) {
                 let basis = nullspace(&self.matrix.without_rows(&rows_of(&[*a, *b])))?;
                 let Some(v) = basis.first() else { continue };
                 let mut v = v.clone();
                 orient(&mut v);
                 let full = v.iter().all(|x| *x != 0);
                 let consistent = v.iter().all(|x| *x > 0);
-                let key = (!(full && consistent), !full, law_order(*a) + law_order(*b));
+                // Orders are at most 2, so the sum cannot saturate.
+                let key = (
+                    !(full && consistent),
+                    !full,
+                    law_order(*a).saturating_add(law_order(*b)),
+                );
                 if best_pair.as_ref().is_none_or(|(k, _, _)| key < *k) {
                     best_pair = Some((key, *a, *b));
                 }
@@ -244,7 +249,8 @@ impl System<'_> {
             };
             let n = balanced.terms.len();
             let clean = balanced.terms.iter().enumerate().all(|(i, t)| {
-                t.coefficient > Q::from_integer(0) && (i + 1 == n || t.side == t.written)
+                t.coefficient > Q::from_integer(0)
+                    && (Some(i) == n.checked_sub(1) || t.side == t.written)
             });
             if !clean {
                 continue;
@@ -299,11 +305,14 @@ impl System<'_> {
     /// What kind of species would fix a law, using the balance that holds
     /// without it (when that balance is unique) to say which side needs what.
     fn law_fix(&self, law: Law, v: Option<&[i64]>) -> String {
+        // `None` also when a sum leaves the exact range: the help is then
+        // the general one, never a wrapped number.
         let excess = |value: &dyn Fn(&Unknown<'_>) -> Q| -> Option<Q> {
             let v = v?;
             let mut total = Q::from_integer(0);
             for (u, x) in self.unknowns.iter().zip(v) {
-                total += Q::from_integer(u.side.sign() * x) * value(u);
+                let x = Q::from_integer(u.side.sign().checked_mul(*x)?);
+                total = number::add(total, number::mul(x, value(u)).ok()?).ok()?;
             }
             Some(total)
         };
@@ -331,7 +340,8 @@ impl System<'_> {
                 ),
                 Some(d) if d < Q::from_integer(0) => format!(
                     "balanced in everything else, the right side is {} more negative: add an electronic defect (h• on the right, or e′ on the left) or a positively charged defect",
-                    number::to_plain(-d)
+                    d.checked_abs()
+                        .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain)
                 ),
                 _ => "add an electronic defect (e′ or h•) or a charged defect".into(),
             },
@@ -381,7 +391,25 @@ impl System<'_> {
             .sublattices
             .iter()
             .all(|s| s.count > Q::from_integer(0));
-        let (Some(v), true) = (v, counted) else {
+        // Net site changes and their ratio to the host's counts; `None` when
+        // a sum leaves the exact range.
+        let changes = || -> Option<(Vec<Q>, Vec<Q>)> {
+            let v = v?;
+            let mut delta = vec![Q::from_integer(0); host.sublattices.len()];
+            for (u, x) in self.unknowns.iter().zip(v) {
+                let x = Q::from_integer(u.side.sign().checked_mul(*x)?);
+                for (d, s) in delta.iter_mut().zip(&u.content.sites) {
+                    *d = number::add(*d, number::mul(x, *s).ok()?).ok()?;
+                }
+            }
+            let lambda = delta
+                .iter()
+                .zip(&host.sublattices)
+                .map(|(d, s)| d.checked_div(s.count).ok())
+                .collect::<Option<Vec<Q>>>()?;
+            Some((delta, lambda))
+        };
+        let (Some((delta, lambda)), true) = (counted.then(changes).flatten(), counted) else {
             let all: Vec<String> = host.sublattices.iter().map(kind_examples).collect();
             return format!(
                 "regular sites are created only in the ratio {}: add {}",
@@ -389,17 +417,6 @@ impl System<'_> {
                 all.join(", or ")
             );
         };
-        let mut delta = vec![Q::from_integer(0); host.sublattices.len()];
-        for (u, x) in self.unknowns.iter().zip(v) {
-            for (d, s) in delta.iter_mut().zip(&u.content.sites) {
-                *d += Q::from_integer(u.side.sign() * x) * s;
-            }
-        }
-        let lambda: Vec<Q> = delta
-            .iter()
-            .zip(&host.sublattices)
-            .map(|(d, s)| d / s.count)
-            .collect();
         let most = lambda.iter().copied().max().unwrap_or_default();
         let changes: Vec<String> = host
             .sublattices
@@ -416,7 +433,9 @@ impl System<'_> {
                 format!(
                     "{} {} more ({})",
                     s.name(),
-                    number::to_plain((most - l) * s.count),
+                    number::sub(most, *l)
+                        .and_then(|x| number::mul(x, s.count))
+                        .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain),
                     kind_examples(s)
                 )
             })
@@ -457,7 +476,10 @@ fn law_order(law: Law) -> u8 {
 /// `O_O×` (regular) or `V_O••` (fully ionised vacancy) for a sublattice, as text.
 fn site_species_text(sub: &Sublattice, vacancy: bool) -> String {
     let charge = if vacancy {
-        -sub.charge
+        let Ok(charge) = sub.charge.checked_neg() else {
+            return format!("V_{}", sub.name());
+        };
+        charge
     } else {
         Q::from_integer(0)
     };

@@ -9,7 +9,7 @@
 
 use num_bigint::BigInt;
 use num_integer::Integer;
-use num_traits::{CheckedAdd, CheckedMul, CheckedSub, Signed, ToPrimitive};
+use num_traits::{CheckedAdd, CheckedDiv, CheckedMul, CheckedSub, Signed, ToPrimitive};
 
 /// A result entry does not fit an `i64` coefficient.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -18,12 +18,28 @@ pub struct TooLarge;
 /// Integer types the elimination runs in: `i128` first, `BigInt` as the
 /// fallback that cannot overflow.
 trait Exact:
-    Clone + Integer + Signed + CheckedMul + CheckedSub + CheckedAdd + From<i64> + ToPrimitive
+    Clone
+    + Integer
+    + Signed
+    + CheckedMul
+    + CheckedSub
+    + CheckedAdd
+    + CheckedDiv
+    + From<i64>
+    + ToPrimitive
 {
 }
 
 impl<T> Exact for T where
-    T: Clone + Integer + Signed + CheckedMul + CheckedSub + CheckedAdd + From<i64> + ToPrimitive
+    T: Clone
+        + Integer
+        + Signed
+        + CheckedMul
+        + CheckedSub
+        + CheckedAdd
+        + CheckedDiv
+        + From<i64>
+        + ToPrimitive
 {
 }
 
@@ -72,17 +88,19 @@ impl Matrix {
     }
 }
 
-/// Divides a row by the gcd of its entries (its content).
-fn make_primitive<T: Exact>(row: &mut [T]) {
+/// Divides a row by the gcd of its entries (its content); `None` when a
+/// step overflows `T`.
+fn make_primitive<T: Exact>(row: &mut [T]) -> Option<()> {
     let mut g = T::zero();
     for x in row.iter() {
         g = g.gcd(x);
     }
     if !g.is_zero() && !g.is_one() {
         for x in row.iter_mut() {
-            *x = x.clone() / g.clone();
+            *x = x.checked_div(&g)?;
         }
     }
+    Some(())
 }
 
 /// Gauss–Jordan elimination without fractions: every pivot column ends with
@@ -110,17 +128,17 @@ fn eliminate<T: Exact>(m: &mut [Vec<T>], cols: usize) -> Option<Vec<(usize, usiz
                 continue;
             }
             let g = pivot_row[c].gcd(&row[c]);
-            let times_pivot = row[c].clone() / g.clone();
-            let times_row = pivot_row[c].clone() / g;
+            let times_pivot = row[c].checked_div(&g)?;
+            let times_row = pivot_row[c].checked_div(&g)?;
             for k in 0..cols {
                 let a = row[k].checked_mul(&times_row)?;
                 let b = pivot_row[k].checked_mul(&times_pivot)?;
                 row[k] = a.checked_sub(&b)?;
             }
-            make_primitive(row);
+            make_primitive(row)?;
         }
         pivots.push((r, c));
-        r += 1;
+        r = r.checked_add(1)?;
     }
     Some(pivots)
 }
@@ -163,7 +181,7 @@ fn nullspace_in<T: Exact>(m: &Matrix) -> Option<Result<Vec<Vec<i64>>, TooLarge>>
                 continue;
             }
             let p = rows[r][c].abs();
-            let need = p.clone() / p.gcd(a);
+            let need = p.checked_div(&p.gcd(a))?;
             scale = scale.lcm(&need);
         }
         let mut x = vec![T::zero(); m.cols];
@@ -175,16 +193,24 @@ fn nullspace_in<T: Exact>(m: &Matrix) -> Option<Result<Vec<Vec<i64>>, TooLarge>>
             }
             let p = rows[r][c].clone();
             let g = p.gcd(&a);
-            let value = (a / g.clone()).checked_mul(&(scale.clone() / (p / g)))?;
-            x[c] = -value;
+            let value = a
+                .checked_div(&g)?
+                .checked_mul(&scale.checked_div(&p.checked_div(&g)?)?)?;
+            x[c] = T::zero().checked_sub(&value)?;
         }
-        make_primitive(&mut x);
+        make_primitive(&mut x)?;
         basis.push(x);
     }
     Some(
         basis
             .into_iter()
-            .map(|v| v.iter().map(|x| x.to_i64().ok_or(TooLarge)).collect())
+            // i64::MIN is refused too: every entry then has a negative, so
+            // the balancer can flip and take sizes without overflow.
+            .map(|v| {
+                v.iter()
+                    .map(|x| x.to_i64().filter(|x| *x != i64::MIN).ok_or(TooLarge))
+                    .collect()
+            })
             .collect(),
     )
 }
@@ -203,7 +229,11 @@ pub fn primitive(v: &mut [i64]) {
     let g = v.iter().fold(0i64, |g, x| g.gcd(x));
     if g > 1 {
         for x in v.iter_mut() {
-            *x /= g;
+            // g > 1 divides x: the quotient is exact and smaller, so the
+            // division never fails.
+            if let Some(q) = x.checked_div(g) {
+                *x = q;
+            }
         }
     }
 }
@@ -218,7 +248,11 @@ mod tests {
             .map(|r| {
                 r.iter()
                     .zip(x)
-                    .map(|(a, b)| i128::from(*a) * i128::from(*b))
+                    .map(|(a, b)| {
+                        i128::from(*a)
+                            .checked_mul(i128::from(*b))
+                            .expect("i64 products fit in i128")
+                    })
                     .sum()
             })
             .collect()

@@ -11,6 +11,8 @@
 //! integer entries, so the balanced reactions are the integer nullspace of a
 //! small matrix (the `matrix` module). Everything is exact: no floating point.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod build;
 pub mod checked;
 mod explain;
@@ -27,7 +29,6 @@ use crate::notation::{
 };
 use matrix::{Matrix, TooLarge, nullspace, primitive, rank};
 use num_integer::Integer;
-use num_traits::Signed;
 
 /// Which side of the arrow a term is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -272,7 +273,7 @@ fn signed(q: Q) -> String {
     if q > Q::from_integer(0) {
         format!("+{}", number::to_plain(q))
     } else if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(-q))
+        format!("−{}", number::to_plain(q).trim_start_matches('-'))
     } else {
         "0".into()
     }
@@ -327,7 +328,7 @@ fn content_of(
                 match host.lookup(*element, label.as_deref()) {
                     SiteLookup::Found(i) => {
                         if let Some(slot) = content.sites.get_mut(i) {
-                            *slot += Q::from_integer(1);
+                            *slot = number::add(*slot, Q::from_integer(1)).map_err(overflow)?;
                         }
                     }
                     SiteLookup::NeedsLabel | SiteLookup::Missing => {
@@ -367,7 +368,7 @@ fn content_of(
                         .map_err(overflow)?;
                 }
             }
-            content.charge = a.net_charge();
+            content.charge = a.net_charge().map_err(overflow)?;
         }
     }
     Ok(content)
@@ -429,7 +430,8 @@ impl<'r> System<'r> {
             if term.entity == Entity::Nil {
                 continue;
             }
-            let input = unknowns.len() + diagnostics.len();
+            // A count of the terms read so far: far below usize::MAX.
+            let input = unknowns.len().saturating_add(diagnostics.len());
             match content_of(&term.entity, host, &term.span) {
                 Ok(content) => {
                     let gas =
@@ -467,8 +469,18 @@ impl<'r> System<'r> {
         let mut rows: Vec<Vec<Q>> = Vec::new();
         // Negation, not multiplication by −1: no gcd work.
         let signed = |u: &Unknown<'_>, q: Q| match u.side {
-            Side::Left => -q,
-            Side::Right => q,
+            Side::Left => q.checked_neg(),
+            Side::Right => Ok(q),
+        };
+        let too_large = |_| {
+            vec![
+                Diagnostic::new(
+                    Code::CannotBalance,
+                    reaction.span.clone(),
+                    "the counts of this reaction grow beyond the exact range",
+                )
+                .with_help("use smaller counts; the balancer works exactly and cannot approximate"),
+            ]
         };
         let mut seen: Vec<u8> = Vec::new();
         for u in &unknowns {
@@ -484,7 +496,8 @@ impl<'r> System<'r> {
                 unknowns
                     .iter()
                     .map(|u| signed(u, u.content.count(z)))
-                    .collect(),
+                    .collect::<Result<_, _>>()
+                    .map_err(too_large)?,
             );
         }
         laws.push(Law::Charge);
@@ -492,7 +505,8 @@ impl<'r> System<'r> {
             unknowns
                 .iter()
                 .map(|u| signed(u, u.content.charge))
-                .collect(),
+                .collect::<Result<_, _>>()
+                .map_err(too_large)?,
         );
         if let Some(host) = host {
             // Net site changes Δ_k must be λ·c_k: c_0·Δ_k − c_k·Δ_0 = 0 for k ≥ 1.
@@ -503,9 +517,12 @@ impl<'r> System<'r> {
                         .map(|u| {
                             let s0 = u.content.sites.first().copied().unwrap_or_default();
                             let sk = u.content.sites.get(k).copied().unwrap_or_default();
-                            signed(u, first.count * sk - sub.count * s0)
+                            number::mul(first.count, sk)
+                                .and_then(|a| number::sub(a, number::mul(sub.count, s0)?))
+                                .and_then(|d| signed(u, d))
                         })
-                        .collect();
+                        .collect::<Result<_, _>>()
+                        .map_err(too_large)?;
                     laws.push(Law::Sites);
                     rows.push(row);
                 }
@@ -582,13 +599,14 @@ impl<'r> System<'r> {
                 r
             })
             .collect();
+        let width = n.checked_add(1).ok_or(TooLarge)?;
         for &(j, c) in fixed {
-            let mut row = vec![0i64; n + 1];
+            let mut row = vec![0i64; width];
             row[j] = *c.denom();
-            row[n] = -*c.numer();
+            row[n] = c.numer().checked_neg().ok_or(TooLarge)?;
             rows.push(row);
         }
-        let augmented = Matrix::new(rows, n + 1);
+        let augmented = Matrix::new(rows, width);
         let basis = nullspace(&augmented)?;
         let Some(with_scale) = basis.iter().position(|v| v[n] != 0) else {
             return Ok(none(self.conflict(fixed)?));
@@ -605,9 +623,18 @@ impl<'r> System<'r> {
             }
             let mut h = Vec::with_capacity(n);
             for j in 0..n {
-                let value =
-                    i128::from(w[j]) * i128::from(t) - i128::from(particular[j]) * i128::from(w[n]);
-                h.push(i64::try_from(value).map_err(|_| TooLarge)?);
+                // Products of two i64 fit in i128; the difference is checked.
+                let value = i128::from(w[j])
+                    .checked_mul(i128::from(t))
+                    .zip(i128::from(particular[j]).checked_mul(i128::from(w[n])))
+                    .and_then(|(a, b)| a.checked_sub(b))
+                    .ok_or(TooLarge)?;
+                // i64::MIN is refused as in `nullspace`: every entry has a negative.
+                let value = i64::try_from(value)
+                    .ok()
+                    .filter(|v| *v != i64::MIN)
+                    .ok_or(TooLarge)?;
+                h.push(value);
             }
             primitive(&mut h);
             if h.iter().any(|x| *x != 0) {
@@ -677,7 +704,8 @@ impl<'r> System<'r> {
     }
 
     fn several(&self, reactions: Vec<Vec<Q>>, fixed: Option<&[(usize, Q)]>) -> Outcome {
-        let k = reactions.len() - usize::from(fixed.is_some());
+        // With fixed coefficients the list starts with the particular solution.
+        let k = reactions.len().saturating_sub(usize::from(fixed.is_some()));
         let rank = rank(&self.matrix).unwrap_or(0);
         let support = |v: &Vec<Q>| -> Vec<usize> {
             (0..v.len())
@@ -757,7 +785,9 @@ impl<'r> System<'r> {
                 continue;
             }
             let mut term = u.term.clone();
-            term.coefficient = if *c < zero { -*c } else { *c };
+            // Entries come from primitive i64 vectors, never i64::MIN (see
+            // `matrix`), so the size always exists.
+            term.coefficient = c.checked_abs().unwrap_or(*c);
             term.coefficient_written = true;
             match (u.side, *c > zero) {
                 (Side::Left, true) => left.push(term),
@@ -808,8 +838,10 @@ impl<'r> System<'r> {
                     } else {
                         u.side
                     },
-                    coefficient: c.abs(),
-                    conventional: conv.abs(),
+                    // Coefficients come from the i64 nullspace vector made
+                    // primitive, so none is i64::MIN; `abs` cannot fail.
+                    coefficient: c.checked_abs().unwrap_or(*c),
+                    conventional: conv.checked_abs().unwrap_or(*conv),
                 })
                 .collect(),
             reaction: self.rebuild(v),
@@ -832,7 +864,9 @@ fn orient(v: &mut [i64]) {
     let first_negative = v.iter().find(|x| **x != 0).is_some_and(|x| *x < 0);
     if negative > positive || (negative == positive && first_negative) {
         for x in v.iter_mut() {
-            *x = -*x;
+            // Entries come from `nullspace` and `solve_fixed`, which refuse
+            // i64::MIN, so the negation is exact (never saturates).
+            *x = x.saturating_neg();
         }
     }
 }
@@ -851,7 +885,12 @@ fn conventional_scale(v: &[Q], unknowns: &[Unknown<'_>]) -> Vec<Q> {
     if g <= 1 {
         return v.to_vec();
     }
-    v.iter().map(|x| x / Q::from_integer(g)).collect()
+    // g > 1 divides every condensed coefficient, so the quotients are exact
+    // and smaller; a failure cannot happen, and would leave `v` unscaled.
+    v.iter()
+        .map(|x| x.checked_div(Q::from_integer(g)))
+        .collect::<Result<_, _>>()
+        .unwrap_or_else(|_| v.to_vec())
 }
 
 /// Elementary balanced reactions: null vectors of minimal support, found by
@@ -879,16 +918,18 @@ fn circuits(m: &Matrix, k: usize) -> Result<Vec<Vec<i64>>, TooLarge> {
             }
         }
         // Next combination in lexicographic order.
+        // Indices stay below n and zeroed ≤ n, so the saturating steps
+        // below never saturate.
         let mut i = zeroed;
         loop {
-            if i == 0 {
+            let Some(previous) = i.checked_sub(1) else {
                 return Ok(found);
-            }
-            i -= 1;
-            if combo[i] < n - zeroed + i {
-                combo[i] += 1;
-                for j in i + 1..zeroed {
-                    combo[j] = combo[j - 1] + 1;
+            };
+            i = previous;
+            if combo[i] < n.saturating_sub(zeroed).saturating_add(i) {
+                combo[i] = combo[i].saturating_add(1);
+                for j in i.saturating_add(1)..zeroed {
+                    combo[j] = combo[j.saturating_sub(1)].saturating_add(1);
                 }
                 break;
             }
@@ -899,7 +940,11 @@ fn circuits(m: &Matrix, k: usize) -> Result<Vec<Vec<i64>>, TooLarge> {
 fn binomial(n: usize, k: usize) -> usize {
     let mut r: usize = 1;
     for i in 0..k {
-        r = r.saturating_mul(n - i) / (i + 1);
+        // i < k ≤ n; the divisor is at least 1.
+        r = r
+            .saturating_mul(n.saturating_sub(i))
+            .checked_div(i.saturating_add(1))
+            .unwrap_or(usize::MAX);
     }
     r
 }

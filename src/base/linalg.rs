@@ -6,6 +6,8 @@
 //! runs on big rationals; results come back as `Q` through `to_q`, which
 //! fails loudly instead of rounding.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use crate::base::number::{Overflow, Q};
 use num_bigint::BigInt;
 use num_rational::BigRational;
@@ -72,7 +74,8 @@ pub fn rref(m: &mut Matrix) -> Vec<usize> {
             }
         }
         pivots.push(col);
-        row += 1;
+        // At most one pivot per row: row stays below the row count.
+        row = row.saturating_add(1);
     }
     pivots
 }
@@ -122,7 +125,7 @@ pub fn solve(a: &Matrix, b: &Matrix) -> Option<Matrix> {
     }
     Some(
         aug.into_iter()
-            .map(|row| row[n..n + width].to_vec())
+            .map(|row| row[n..].iter().take(width).cloned().collect())
             .collect(),
     )
 }
@@ -146,7 +149,7 @@ pub fn right_inverse(m: &Matrix, cols: usize) -> Option<Matrix> {
     }
     let mut x = vec![vec![R::zero(); rows]; cols];
     for (row, &p) in pivots.iter().enumerate() {
-        x[p] = aug[row][cols..cols + rows].to_vec();
+        x[p] = aug[row][cols..].iter().take(rows).cloned().collect();
     }
     Some(x)
 }

@@ -6,6 +6,8 @@
 //! call into the balancer: the balanced form shown as a hint on a failing
 //! reaction is attached by the caller (`crate::balance::hint`).
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod rules;
 
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
@@ -69,22 +71,34 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     checker.vanadium =
         host.is_some_and(|h| h.contains_element(VANADIUM)) || mentions_vanadium(reaction);
     let mut table = BalanceTable::default();
-    let mut overflow = false;
+    // The first term at which a sum left the exact range.
+    let mut overflow: Option<Span> = None;
     for (right, term) in reaction.terms() {
         checker.validate_term(term);
         if checker
             .accumulate(&mut table, term, Q::from_integer(1), right)
             .is_err()
         {
-            overflow = true;
+            overflow.get_or_insert_with(|| term.span.clone());
         }
     }
-    if overflow {
+    let site_holds = if checker.sites_known {
+        site_ratio_holds(&table.sites).map(Some)
+    } else {
+        Ok(None)
+    };
+    if overflow.is_some() || site_holds.is_err() {
         // The sums are not trustworthy: report that alone, and no balance.
-        checker.diags.push(
-            Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range")
-                .with_help("use smaller coefficients; the balances are exact, so they cannot be evaluated approximately"),
-        );
+        let mut diagnostic = Diagnostic::new(Code::Number, reaction.span.clone(), "the sums of this reaction grew beyond the exact range (about 9.2e18)")
+            .with_help("use smaller coefficients; the balances are exact, so they cannot be evaluated approximately");
+        if let Some(span) = overflow {
+            diagnostic.span = span;
+            diagnostic.label = Some("the sums leave the exact range at this term".into());
+        }
+        // An associate whose own parts overflowed has said so already.
+        if !checker.diags.iter().any(|d| d.code == Code::Number) {
+            checker.diags.push(diagnostic);
+        }
         return Verdict {
             balance: Balance {
                 mass: false,
@@ -97,11 +111,7 @@ pub fn check_reaction(reaction: &Reaction, host: Option<&Host>) -> Verdict {
     }
     let mass = table.elements.iter().all(|(_, l, r)| l == r);
     let charge = table.charge.0 == table.charge.1;
-    let site = if checker.sites_known {
-        Some(site_ratio_holds(&table.sites))
-    } else {
-        None
-    };
+    let site = site_holds.unwrap_or(None);
     if host.is_none() {
         checker.diags.push(
             Diagnostic::new(
@@ -152,19 +162,32 @@ fn mentions_vanadium(reaction: &Reaction) -> bool {
 }
 
 /// Net site changes must be proportional to the host's site counts.
-fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> bool {
+fn site_ratio_holds(sites: &[(usize, Q, Q, Q)]) -> Result<bool, number::Overflow> {
     let Some((_, count0, l0, r0)) = sites.first() else {
-        return true;
+        return Ok(true);
     };
     if *count0 == Q::from_integer(0) {
-        return false;
+        return Ok(false);
     }
-    let lambda = (r0 - l0) / count0;
-    sites.iter().all(|(_, count, l, r)| r - l == lambda * count)
+    let lambda = number::sub(*r0, *l0)?.checked_div(*count0)?;
+    for (_, count, l, r) in sites {
+        if number::sub(*r, *l)? != number::mul(lambda, *count)? {
+            return Ok(false);
+        }
+    }
+    Ok(true)
+}
+
+/// The text of a number computed for a message, or a plain statement when
+/// it left the exact range (never a wrapped number).
+fn exact_text(q: Result<Q, number::Overflow>, text: fn(Q) -> String) -> String {
+    q.map_or_else(|_| "beyond the exact range".to_string(), text)
 }
 
 fn signed_text(q: Q) -> String {
-    let plain = number::to_plain(if q < Q::from_integer(0) { -q } else { q });
+    let Ok(plain) = q.checked_abs().map(number::to_plain) else {
+        return format!("−{}", number::to_plain(q).trim_start_matches('-'));
+    };
     if q < Q::from_integer(0) {
         format!("−{plain}")
     } else {
@@ -178,6 +201,16 @@ fn change_text(q: Q) -> String {
     } else {
         signed_text(q)
     }
+}
+
+/// A P107 at `span`: `what` left the exact range.
+fn overflow_at(span: Span, what: &str) -> Diagnostic {
+    Diagnostic::new(
+        Code::Number,
+        span,
+        format!("{what} is beyond the exact range (about 9.2e18)"),
+    )
+    .with_help("use smaller numbers; charges and counts are exact, so they cannot be approximated")
 }
 
 fn symbol(z: u8) -> &'static str {
@@ -204,7 +237,13 @@ impl Checker<'_> {
                     self.validate_term(part);
                 }
                 if let Some(declared) = a.charge {
-                    let parts = a.parts_charge();
+                    let Ok(parts) = a.parts_charge() else {
+                        self.push(
+                            Diagnostic::new(Code::Number, a.span.clone(), "the charges of this associate's parts add up to more than Lacuna holds exactly (about 9.2e18)")
+                                .with_help("use smaller coefficients inside the associate; charges are exact, so they cannot be added approximately"),
+                        );
+                        return;
+                    };
                     if parts != Q::from_integer(i64::from(declared)) {
                         self.push(
                             Diagnostic::new(Code::AssociateCharge, a.span.clone(), format!(
@@ -256,7 +295,7 @@ impl Checker<'_> {
             }
             Occupant::Vacancy(crate::notation::VacancySpelling::Bare) if self.vanadium => {
                 self.push(
-                    Diagnostic::new(Code::AmbiguousV, s.span.start..s.span.start + 1, "`V` could be vanadium or a vacancy here: vanadium occurs in this host or reaction")
+                    Diagnostic::new(Code::AmbiguousV, s.span.start..s.span.start.saturating_add(1), "`V` could be vanadium or a vacancy here: vanadium occurs in this host or reaction")
                         .with_label("vanadium or vacancy?")
                         .with_help(format!("for a vacancy write `Vac{rest}` or `□{rest}`; for vanadium write `el:V{rest}`", rest = &render_species(s, Style::Unicode)[1..])),
                 );
@@ -286,7 +325,13 @@ impl Checker<'_> {
             Occupant::Vacancy(_) => self.vacancy_range(s, site_charge),
             Occupant::Atoms { formula, .. } => {
                 if let Some(z) = formula.single_element() {
-                    self.oxidation_state(s, z, effective + site_charge, site_charge);
+                    match number::add(effective, site_charge) {
+                        Ok(real) => self.oxidation_state(s, z, real, site_charge),
+                        Err(_) => self.push(overflow_at(
+                            s.span.clone(),
+                            "the real charge of this species",
+                        )),
+                    }
                 }
             }
             _ => {}
@@ -352,7 +397,10 @@ impl Checker<'_> {
     fn vacancy_range(&mut self, s: &Species, site_charge: Q) {
         let q = Q::from_integer(i64::from(s.charge));
         let zero = Q::from_integer(0);
-        let limit = -site_charge;
+        let Ok(limit) = site_charge.checked_neg() else {
+            self.push(overflow_at(s.span.clone(), "the charge of this site"));
+            return;
+        };
         let inside = if limit >= zero {
             q >= zero && q <= limit
         } else {
@@ -414,10 +462,14 @@ impl Checker<'_> {
             .iter()
             .copied()
             .filter(|c| *c != 0)
-            .min_by_key(|c| (i64::from(*c) - *site_charge.numer()).abs())
+            .min_by_key(|c| i64::from(*c).abs_diff(*site_charge.numer()))
             .map(|common| {
                 let mut fixed = s.clone();
-                fixed.charge = i32::from(common) - i32::try_from(*site_charge.numer()).unwrap_or(0);
+                // An i8 state minus a site charge that fits i32 cannot leave i64;
+                // the result is clamped into i32 like the site charge above.
+                let site = i64::from(i32::try_from(*site_charge.numer()).unwrap_or(0));
+                let charge = i64::from(common).saturating_sub(site);
+                fixed.charge = i32::try_from(charge).unwrap_or(0);
                 format!(
                     "{} on this site is {}",
                     ion_text(element.symbol, common),
@@ -483,7 +535,8 @@ impl Checker<'_> {
                     table
                         .elements
                         .push((z, Q::from_integer(0), Q::from_integer(0)));
-                    table.elements.len() - 1
+                    // Just pushed: the vector is not empty.
+                    table.elements.len().saturating_sub(1)
                 }
             };
             let row = &mut table.elements[index];
@@ -507,7 +560,8 @@ impl Checker<'_> {
                 let declared = a.charge.map(|c| Q::from_integer(i64::from(c)));
                 if let Some(declared) = declared {
                     // The parts already added their own charges; replace them by the declared net.
-                    let correction = number::mul(amount, declared - a.parts_charge())?;
+                    let correction =
+                        number::mul(amount, number::sub(declared, a.parts_charge()?)?)?;
                     if right {
                         add(&mut table.charge.1, correction)?
                     } else {
@@ -586,8 +640,9 @@ impl Checker<'_> {
         // Point at one species whose charge mark, corrected, would balance the
         // reaction with a plausible charge: usually the typo.
         if let Some((span, fixed, note)) = look_for_culprit
-            .then(|| self.charge_culprit(reaction, right - left))
+            .then(|| number::sub(right, left).ok())
             .flatten()
+            .and_then(|excess| self.charge_culprit(reaction, excess))
         {
             diagnostic.span = span;
             diagnostic.label = Some(note);
@@ -619,11 +674,19 @@ impl Checker<'_> {
                 continue;
             };
             let site_charge = host.sublattices[i].charge;
-            let delta = if right { -excess_right } else { excess_right } / term.coefficient;
+            let delta = if right {
+                excess_right.checked_neg()
+            } else {
+                Ok(excess_right)
+            }
+            .and_then(|d| d.checked_div(term.coefficient));
+            let Ok(delta) = delta else { continue };
             if !delta.is_integer() {
                 continue;
             }
-            let new_charge = i64::from(s.charge) + delta.numer();
+            let Some(new_charge) = i64::from(s.charge).checked_add(*delta.numer()) else {
+                continue;
+            };
             let Ok(new_charge) = i32::try_from(new_charge) else {
                 continue;
             };
@@ -633,7 +696,9 @@ impl Checker<'_> {
             let q = Q::from_integer(i64::from(new_charge));
             let (plausible, note) = match &s.occupant {
                 Occupant::Vacancy(_) => {
-                    let full = -site_charge;
+                    let Ok(full) = site_charge.checked_neg() else {
+                        continue;
+                    };
                     let ok = if full >= Q::from_integer(0) {
                         q >= Q::from_integer(0) && q <= full
                     } else {
@@ -666,9 +731,11 @@ impl Checker<'_> {
                         .single_element()
                         .and_then(elements::by_z)
                         .is_some_and(|e| {
-                            let real = q + site_charge;
-                            real.is_integer()
-                                && i8::try_from(*real.numer()).is_ok_and(|st| e.is_common_state(st))
+                            number::add(q, site_charge).is_ok_and(|real| {
+                                real.is_integer()
+                                    && i8::try_from(*real.numer())
+                                        .is_ok_and(|st| e.is_common_state(st))
+                            })
                         });
                     (ok, format!("balances as {fixed_text}"))
                 }
@@ -690,7 +757,13 @@ impl Checker<'_> {
         let changes: Vec<String> = table
             .sites
             .iter()
-            .map(|(i, _, l, r)| format!("{} {}", site_name(host, *i), change_text(r - l)))
+            .map(|(i, _, l, r)| {
+                format!(
+                    "{} {}",
+                    site_name(host, *i),
+                    exact_text(number::sub(*r, *l), change_text)
+                )
+            })
             .collect();
         let mut message = format!(
             "sites break the {} ratio {}: net change {}",
@@ -701,16 +774,19 @@ impl Checker<'_> {
         // Say what the other sublattices would need, scaled to the first that changed.
         if let Some((first, count, l, r)) = table.sites.iter().find(|(_, _, l, r)| l != r) {
             let name = site_name(host, *first);
-            let lambda = (r - l) / count;
+            let lambda = number::sub(*r, *l).and_then(|d| d.checked_div(*count));
             let needed: Vec<String> = table
                 .sites
                 .iter()
                 .filter(|(n, ..)| n != first)
-                .map(|(n, c, ..)| format!("{} {}", site_name(host, *n), change_text(lambda * c)))
+                .map(|(n, c, ..)| {
+                    let need = lambda.and_then(|x| number::mul(x, *c));
+                    format!("{} {}", site_name(host, *n), exact_text(need, change_text))
+                })
                 .collect();
             message.push_str(&format!(
                 " (for {name} {} the host needs {})",
-                change_text(r - l),
+                exact_text(number::sub(*r, *l), change_text),
                 needed.join(", ")
             ));
         }
@@ -769,7 +845,7 @@ fn ion_text(symbol: &str, state: i8) -> String {
         1 => format!("{symbol}+"),
         -1 => format!("{symbol}−"),
         s if s > 0 => format!("{symbol}{s}+"),
-        s => format!("{symbol}{}−", -s),
+        s => format!("{symbol}{}−", s.unsigned_abs()),
     }
 }
 

@@ -7,9 +7,11 @@
 //! `--deny`/`--warn`/`--allow`) and per-line `# lacuna-allow:` comments.
 
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
-use crate::base::number::Q;
+use crate::base::number::{self, Q};
 use crate::host::{Host, SiteLookup};
-use crate::notation::{Entity, MarkStyle, Occupant, Reaction, Site, Span, Species, Term};
+use crate::notation::{
+    Entity, MarkStyle, Occupant, Phase, Reaction, Site, Span, Species, SpeciesKey, Term,
+};
 use std::collections::HashMap;
 use std::collections::hash_map::Entry;
 use std::hash::{BuildHasherDefault, Hash, Hasher};
@@ -150,7 +152,7 @@ fn allowed_on_line(line_text: &str) -> Vec<Code> {
     let Some(at) = line_text.find(ALLOW_COMMENT) else {
         return Vec::new();
     };
-    line_text[at + ALLOW_COMMENT.len()..]
+    line_text[at..][ALLOW_COMMENT.len()..]
         .split(|c: char| c.is_whitespace() || c == ',')
         .filter_map(Code::from_str_id)
         .collect()
@@ -165,9 +167,19 @@ const REPEAT_TRACKING_LIMIT: usize = 100_000;
 pub struct FileLints {
     dot_style: Option<(MarkStyle, u32)>,
     other_style: Option<(MarkStyle, u32)>,
-    seen: HashMap<u64, u32, KeyIsHash>,
-    /// Names seen so far, by hash (bounded memory on huge files).
-    labels: HashMap<NameKey, u32, KeyIsHash>,
+    /// Reactions seen so far by the hash of their scaled net stoichiometry,
+    /// with the line and the net itself: a hash match is only a candidate,
+    /// the nets are compared exactly before anything is reported.
+    seen: HashMap<u64, Vec<(u32, Net)>, KeyIsHash>,
+    /// Names seen so far, by hash (bounded memory on huge files): the line
+    /// and where the name's text starts in `label_text`. A hash match is only
+    /// a candidate; the names themselves are compared before L503 or L504.
+    labels: HashMap<NameKey, (u32, u32), KeyIsHash>,
+    /// The first-seen names, each ended by a newline (a name holds none).
+    label_text: String,
+    /// Names that could not go in `labels`: a different name had their hash
+    /// (or `label_text` outgrew u32 offsets). With the line of first use.
+    label_others: Vec<(Box<str>, u32)>,
     /// Names used by model lines: (line, line text, span of the name).
     references: Vec<(u32, String, Span)>,
     integer_reactions: u32,
@@ -184,8 +196,8 @@ pub struct ReactionFacts {
     label: Option<(u64, Span)>,
     /// (charge is positive, style as tracked, span) of each marked species, in order.
     marks: Vec<(bool, MarkStyle, Span)>,
-    /// Hashes of the net stoichiometry, forwards and reversed.
-    repeat: Option<(u64, u64)>,
+    /// The net stoichiometry and its hashes, forwards and reversed.
+    repeat: Option<Repeat>,
     span: Span,
     /// The first fractional coefficient's span, if any.
     fractional: Option<Span>,
@@ -263,20 +275,17 @@ impl FileLints {
     ) -> Vec<Diagnostic> {
         let mut out = Vec::new();
         if let Some((key, span)) = facts.label {
-            // One probe of the (large, cache-cold) table per name.
-            match self.labels.entry(NameKey::new(key)) {
-                Entry::Occupied(first) => out.push(
-                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{}` is already used on line {}", name.unwrap_or_default(), first.get()))
+            let name = name.unwrap_or_default();
+            if let Some(first) = self.first_use(key, name, line) {
+                out.push(
+                    Diagnostic::new(Code::DuplicateLabel, span, format!("the name `{name}` is already used on line {first}"))
                         .with_help("names identify reactions in models and reports; give this one another name"),
-                ),
-                Entry::Vacant(slot) => {
-                    slot.insert(line);
-                }
+                );
             }
         }
         self.mark_styles(line, facts.marks, &mut out);
-        if let Some(hashes) = facts.repeat {
-            self.repeats(line, hashes, facts.span, &mut out);
+        if let Some(repeat) = facts.repeat {
+            self.repeats(line, repeat, facts.span, &mut out);
         }
         self.fractions(facts.fractional, &mut out);
         out.extend(facts.local);
@@ -320,7 +329,39 @@ impl FileLints {
     pub fn knows_label(&self, name: &str) -> bool {
         let mut h = fnv();
         h.write(name.as_bytes());
-        self.labels.contains_key(&NameKey::new(h.finish()))
+        let stored = self
+            .labels
+            .get(&NameKey::new(h.finish()))
+            .is_some_and(|(_, at)| stored_name(&self.label_text, *at) == name);
+        stored || self.label_others.iter().any(|(n, _)| &**n == name)
+    }
+
+    /// Records the first use of a name and returns `None`, or returns the
+    /// line of its first use. One probe of the (large, cache-cold) table per
+    /// name; on a hash match the names are compared.
+    fn first_use(&mut self, key: u64, name: &str, line: u32) -> Option<u32> {
+        match self.labels.entry(NameKey::new(key)) {
+            Entry::Occupied(first) => {
+                let (first_line, at) = *first.get();
+                if stored_name(&self.label_text, at) == name {
+                    return Some(first_line);
+                }
+            }
+            Entry::Vacant(slot) => {
+                if let Ok(at) = u32::try_from(self.label_text.len()) {
+                    slot.insert((line, at));
+                    self.label_text.push_str(name);
+                    self.label_text.push('\n');
+                    return None;
+                }
+            }
+        }
+        // A different name with the same hash, or no room for offsets.
+        if let Some((_, first)) = self.label_others.iter().find(|(n, _)| &**n == name) {
+            return Some(*first);
+        }
+        self.label_others.push((name.into(), line));
+        None
     }
 
     fn mark_styles(
@@ -349,18 +390,25 @@ impl FileLints {
         }
     }
 
-    fn repeats(
-        &mut self,
-        line: u32,
-        (forward, backward): (u64, u64),
-        span: Span,
-        out: &mut Vec<Diagnostic>,
-    ) {
-        let earlier = match (self.seen.get(&forward), self.seen.get(&backward)) {
-            (Some(line), _) => Some((*line, "a multiple")),
-            (None, Some(line)) => Some((*line, "the reverse")),
-            (None, None) => None,
-        };
+    fn repeats(&mut self, line: u32, repeat: Repeat, span: Span, out: &mut Vec<Diagnostic>) {
+        // The hashes may collide (and wrap by design): they only pick the
+        // candidates, and the nets themselves decide.
+        let earlier = [repeat.forward, repeat.backward]
+            .iter()
+            .filter_map(|h| self.seen.get(h))
+            .flatten()
+            .find_map(|(first, net)| {
+                proportional(net, &repeat.net).map(|same_way| {
+                    (
+                        *first,
+                        if same_way {
+                            "a multiple"
+                        } else {
+                            "the reverse"
+                        },
+                    )
+                })
+            });
         if let Some((first, what)) = earlier {
             out.push(
                 Diagnostic::new(
@@ -375,7 +423,10 @@ impl FileLints {
             return;
         }
         if self.seen.len() < REPEAT_TRACKING_LIMIT {
-            self.seen.insert(forward, line);
+            self.seen
+                .entry(repeat.forward)
+                .or_default()
+                .push((line, repeat.net));
         } else if !self.repeat_limit_noted {
             self.repeat_limit_noted = true;
             let mut note = Diagnostic::new(
@@ -392,7 +443,8 @@ impl FileLints {
 
     fn fractions(&mut self, fractional: Option<Span>, out: &mut Vec<Diagnostic>) {
         match fractional {
-            None => self.integer_reactions += 1,
+            // Counts of reactions in one file: u32 saturates, never wraps.
+            None => self.integer_reactions = self.integer_reactions.saturating_add(1),
             Some(span) => {
                 if self.integer_reactions > self.fractional_reactions {
                     out.push(
@@ -400,7 +452,7 @@ impl FileLints {
                             .with_help("multiply the reaction through to whole numbers, or keep fractions throughout the file"),
                     );
                 }
-                self.fractional_reactions += 1;
+                self.fractional_reactions = self.fractional_reactions.saturating_add(1);
             }
         }
     }
@@ -430,9 +482,17 @@ fn for_each_species<'a>(reaction: &'a Reaction, f: &mut dyn FnMut(&'a Species)) 
     }
 }
 
-/// A name's 64-bit hash stored as two halves: with the line number beside
-/// it a table entry takes 12 bytes instead of 16, which matters for files
-/// with a million names.
+/// The name stored at byte `at` of `text` (up to its newline).
+fn stored_name(text: &str, at: u32) -> &str {
+    let at = usize::try_from(at).unwrap_or(usize::MAX);
+    text.get(at..)
+        .and_then(|rest| rest.split('\n').next())
+        .unwrap_or_default()
+}
+
+/// A name's 64-bit hash stored as two halves: with the line number and the
+/// name's offset beside it a table entry takes 16 bytes instead of 24, which
+/// matters for files with a million names.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct NameKey([u32; 2]);
 
@@ -573,51 +633,126 @@ fn entity_hash(term: &Term) -> Option<u64> {
     Some(h.finish())
 }
 
-/// Hashes of the reaction's net stoichiometry scaled to a canonical size,
-/// forwards and reversed: equal hashes mean a multiple or the reverse.
-fn normalized_hashes(reaction: &Reaction) -> Option<(u64, u64)> {
-    let mut net: Vec<(u64, Q)> = Vec::with_capacity(reaction.left.len() + reaction.right.len());
+/// What a term stands for, exactly: spelling, spans and the order of a
+/// compound's atoms or an associate's parts do not matter. The repeat rule
+/// compares these once hashes have found a candidate.
+#[derive(Debug, Clone, PartialEq, Eq)]
+enum Thing {
+    Species(SpeciesKey),
+    /// Atoms sorted, and the phase.
+    Compound(Vec<(u8, Q)>, Option<Phase>),
+    /// Species parts with their coefficients, sorted, and the declared charge.
+    Associate(Vec<(SpeciesKey, Q)>, Option<i32>),
+}
+
+impl Thing {
+    /// The same identity `entity_hash` hashes; `None` for the perfect crystal.
+    fn of(entity: &Entity) -> Option<Thing> {
+        Some(match entity {
+            Entity::Species(s) => Thing::Species(s.key()),
+            Entity::Compound(c) => {
+                let mut atoms = c.formula.atoms.clone();
+                atoms.sort_unstable();
+                Thing::Compound(atoms, c.phase)
+            }
+            Entity::Associate(a) => {
+                let mut parts: Vec<(SpeciesKey, Q)> = a
+                    .parts
+                    .iter()
+                    .filter_map(|p| match &p.entity {
+                        Entity::Species(s) => Some((s.key(), p.coefficient)),
+                        _ => None,
+                    })
+                    .collect();
+                parts.sort_unstable();
+                Thing::Associate(parts, a.charge)
+            }
+            Entity::Nil => return None,
+        })
+    }
+}
+
+/// A reaction's net stoichiometry: each thing once, with its coefficient
+/// (positive on the right), none zero.
+type Net = Box<[(Thing, Q)]>;
+
+/// A reaction's net stoichiometry with the hashes that find candidates.
+#[derive(Debug, Clone)]
+struct Repeat {
+    forward: u64,
+    backward: u64,
+    net: Net,
+}
+
+/// `Some(true)` when `b` is a positive multiple of `a`, `Some(false)` when a
+/// negative one (the reverse), `None` otherwise. Exact, whatever the sizes.
+fn proportional(a: &[(Thing, Q)], b: &[(Thing, Q)]) -> Option<bool> {
+    let ((t0, a0), rest) = a.split_first()?;
+    if a.len() != b.len() {
+        return None;
+    }
+    let b0 = b.iter().find(|(t, _)| t == t0)?.1;
+    for (t, ak) in rest {
+        let bk = b.iter().find(|(u, _)| u == t)?.1;
+        // b = λ a  ⇔  ak·b0 = bk·a0 for every k.
+        if !number::products_equal(*ak, b0, bk, *a0) {
+            return None;
+        }
+    }
+    Some(a0.is_positive() == b0.is_positive())
+}
+
+/// The reaction's net stoichiometry and its hashes scaled to a canonical
+/// size, forwards and reversed: a multiple or the reverse of a reaction has
+/// one of its hashes. `None` when the net leaves the exact range (the checker
+/// reports that) or is empty.
+fn normalized_hashes(reaction: &Reaction) -> Option<Repeat> {
+    let mut net: Vec<(u64, Thing, Q)> =
+        Vec::with_capacity(reaction.left.len().saturating_add(reaction.right.len()));
     for (right, term) in reaction.terms() {
-        let Some(key) = entity_hash(term) else {
+        let (Some(key), Some(thing)) = (entity_hash(term), Thing::of(&term.entity)) else {
             continue;
         };
         let signed = if right {
             term.coefficient
         } else {
-            -term.coefficient
+            term.coefficient.checked_neg().ok()?
         };
-        match net.iter_mut().find(|(k, _)| *k == key) {
-            Some((_, q)) => *q += signed,
-            None => net.push((key, signed)),
+        match net.iter_mut().find(|(k, t, _)| *k == key && *t == thing) {
+            Some((_, _, q)) => *q = number::add(*q, signed).ok()?,
+            None => net.push((key, thing, signed)),
         }
     }
-    net.retain(|(_, q)| *q != Q::from_integer(0));
-    net.sort_unstable_by_key(|(k, _)| *k);
-    let first = net.first()?.1;
-    // Scale by the size of the first coefficient, keeping signs: a reversed
-    // reaction then hashes as the negation of the original.
-    let scale = if first < Q::from_integer(0) {
-        -first
-    } else {
-        first
-    };
-    // Dividing by the first coefficient fixes the scale; its sign says which
-    // way round the reaction is written.
+    net.retain(|(_, _, q)| *q != Q::from_integer(0));
+    net.sort_unstable_by_key(|(k, _, _)| *k);
+    // Scale by the size of the first coefficient: a reversed reaction then
+    // hashes as the negation of the original.
+    let scale = net.first()?.2.checked_abs().ok()?;
     let hash = |sign: i64| {
         let mut h = fnv();
-        for (key, q) in &net {
+        for (key, _, q) in &net {
             h.write_u64(*key);
-            let ratio = if q.is_integer() && scale.is_integer() && q.numer() % scale.numer() == 0 {
-                Q::from_integer(q.numer() / scale.numer())
-            } else {
-                q / scale
-            };
-            h.write_i64(ratio.numer().wrapping_mul(sign));
-            h.write_i64(*ratio.denom());
+            // The size of q/scale, exact, or a mark when it does not fit in
+            // i64 parts (the same for every multiple, since the quotient is
+            // the same number); the sign apart, so the reverse negates it.
+            match q.checked_abs().and_then(|m| m.checked_div(scale)) {
+                Ok(ratio) => {
+                    h.write_i64(*ratio.numer());
+                    h.write_i64(*ratio.denom());
+                }
+                Err(_) => h.write_u8(0xff),
+            }
+            // (−1, 0 or 1) × ±1 cannot overflow.
+            h.write_i64(q.numer().signum().wrapping_mul(sign));
         }
         h.finish()
     };
-    Some((hash(1), hash(-1)))
+    let (forward, backward) = (hash(1), hash(-1));
+    Some(Repeat {
+        forward,
+        backward,
+        net: net.into_iter().map(|(_, t, q)| (t, q)).collect(),
+    })
 }
 
 /// Vacancies and interstitials written without a mark on a charged site.
@@ -627,15 +762,18 @@ fn implicit_neutral(reaction: &Reaction, host: &Host, out: &mut Vec<Diagnostic>)
             return;
         }
         let usual = match (&species.occupant, &species.site) {
-            (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => match host
-                .lookup(*element, label.as_deref())
-            {
-                SiteLookup::Found(i) => {
-                    let charge = -host.sublattices[i].charge;
-                    (charge != Q::from_integer(0) && charge.is_integer()).then(|| *charge.numer())
+            (Occupant::Vacancy(_), Some(Site::Lattice { element, label })) => {
+                match host.lookup(*element, label.as_deref()) {
+                    SiteLookup::Found(i) => {
+                        let charge = host.sublattices[i].charge.checked_neg().ok();
+                        charge.and_then(|charge| {
+                            (charge != Q::from_integer(0) && charge.is_integer())
+                                .then(|| *charge.numer())
+                        })
+                    }
+                    _ => None,
                 }
-                _ => None,
-            },
+            }
             (Occupant::Atoms { formula, .. }, Some(Site::Interstitial)) => formula
                 .single_element()
                 .and_then(|z| host.sublattices.iter().find(|s| s.element == z))
@@ -663,13 +801,101 @@ mod tests {
     use super::*;
     use crate::notation::parse_reaction;
 
+    fn repeat_of(text: &str) -> Repeat {
+        let (reaction, _) = parse_reaction(text, 0..text.len());
+        normalized_hashes(&reaction.expect("parses")).expect("a net stoichiometry")
+    }
+
+    /// Names are compared after a hash match: a collision is not a duplicate.
+    #[test]
+    fn a_name_hash_collision_is_not_a_duplicate() {
+        let mut lints = FileLints::default();
+        assert_eq!(lints.first_use(7, "red", 1), None);
+        assert_eq!(lints.first_use(7, "ox", 2), None, "same hash, other name");
+        assert_eq!(lints.first_use(7, "ox", 3), Some(2));
+        assert_eq!(lints.first_use(7, "red", 4), Some(1));
+        assert_eq!(lints.first_use(8, "gap", 5), None);
+        assert_eq!(lints.first_use(8, "gap", 6), Some(5));
+        // knows_label hashes for itself: the names stored under key 7 and 8
+        // are not found under their real hashes unless compared.
+        let mut named = FileLints::default();
+        let mut h = fnv();
+        h.write(b"red");
+        assert_eq!(named.first_use(h.finish(), "red", 1), None);
+        assert!(named.knows_label("red"));
+        assert!(!named.knows_label("re"));
+        assert!(!named.knows_label("redd"));
+    }
+
+    /// A hash match alone never reports: the nets are compared. Collisions
+    /// are forced by giving unrelated reactions the same hashes.
+    #[test]
+    fn a_hash_collision_is_not_a_repeat() {
+        let mut lints = FileLints::default();
+        let mut out = Vec::new();
+        let first = repeat_of("O_O -> V_O.. + 2e' + 1/2 O2(g)");
+        let (forward, backward) = (first.forward, first.backward);
+        lints.repeats(1, first, 0..1, &mut out);
+        // Different reaction, same hashes (as a collision would give).
+        let mut other = repeat_of("nil -> e' + h.");
+        other.forward = forward;
+        other.backward = backward;
+        lints.repeats(2, other, 0..1, &mut out);
+        // Same stoichiometry up to a factor of 3: proportional, reported
+        // whatever hash it carries among the candidates.
+        let mut tripled = repeat_of("3O_O -> 3V_O.. + 6e' + 3/2 O2(g)");
+        assert_eq!(tripled.forward, forward, "a multiple hashes alike");
+        tripled.backward = 12345;
+        lints.repeats(3, tripled, 0..1, &mut out);
+        let reversed = repeat_of("V_O.. + 2e' + 1/2 O2(g) -> O_O");
+        assert_eq!(
+            reversed.backward, forward,
+            "the reverse hashes as the negation"
+        );
+        lints.repeats(4, reversed, 0..1, &mut out);
+        let messages: Vec<&str> = out.iter().map(|d| d.message.as_str()).collect();
+        assert_eq!(
+            messages,
+            vec![
+                "this reaction is a multiple of the one on line 1",
+                "this reaction is the reverse of the one on line 1"
+            ]
+        );
+    }
+
+    // The measured case: coefficients near 5e18 whose net would wrap. The net
+    // leaves the exact range, so the rule stays silent (the checker reports
+    // the overflow) instead of matching a wrapped number.
+    #[test]
+    fn coefficients_near_the_limit_are_not_repeats() {
+        let lines = [
+            "nil -> 8446744073709551616 e' + 8446744073709551616 h.",
+            "5000000000000000000 e' + 5000000000000000000 e' + 5000000000000000000 h. + 5000000000000000000 h. -> nil",
+            "nil -> 4611686018427387904 e' + 4611686018427387903 h.",
+            "nil -> 4611686018427387903 e' + 4611686018427387904 h.",
+        ];
+        assert!(
+            lint("ZrO2", &lines).is_empty(),
+            "{:?}",
+            lint("ZrO2", &lines)
+        );
+        assert!(proportional(&repeat_of(lines[2]).net, &repeat_of(lines[3]).net).is_none());
+        assert_eq!(
+            proportional(
+                &repeat_of("nil -> 4611686018427387903 e' + 4611686018427387903 h.").net,
+                &repeat_of("nil -> e' + h.").net
+            ),
+            Some(true)
+        );
+    }
+
     fn lint(host: &str, lines: &[&str]) -> Vec<(u32, &'static str)> {
         let host = Host::from_spec(host).expect("host");
         let mut lints = FileLints::default();
         let mut found = Vec::new();
         for (i, text) in lines.iter().enumerate() {
             let (reaction, _) = parse_reaction(text, 0..text.len());
-            let line = i as u32 + 1;
+            let line = u32::try_from(i).expect("few lines").saturating_add(1);
             for d in lints.reaction(line, None, &reaction.expect("parses"), Some(&host)) {
                 found.push((line, d.code.as_str()));
             }

@@ -701,7 +701,14 @@ fn read_enthalpy(
             )
         }),
         [(name, e)] => {
-            let factor = crate::base::number::Q::from_integer(1) / *e;
+            // e is non-zero; only an exponent at the edge of the exact range
+            // has no exact reciprocal, and then no enthalpy is read.
+            let Ok(factor) = e.checked_recip() else {
+                interpretations.push(format!(
+                    "{term}: the exponent of K_{name} is beyond the exact range, so no enthalpy is read"
+                ));
+                return;
+            };
             let f = decompose::q_to_f64(factor);
             let mu = mobility.unwrap_or(0.0);
             let value = f * (fit.activation_ev - mu);

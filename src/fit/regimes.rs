@@ -397,7 +397,7 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
 
 /// A slope as `−1/4`, `0`, `+1/6` (sign always shown, Unicode minus).
 pub fn slope_text(s: Q) -> String {
-    let plain = number::to_plain(num_traits::Signed::abs(&s));
+    let plain = number::to_plain(s).trim_start_matches('-').to_string();
     if s < Q::from_integer(0) {
         format!("−{plain}")
     } else if s > Q::from_integer(0) {

@@ -139,7 +139,11 @@ pub fn associate_key(associate: &Associate) -> String {
     format!(
         "({}){}",
         parts.join(" "),
-        number::to_plain(associate.net_charge())
+        // A net charge beyond the exact range cannot occur once the reaction
+        // passed its checks; the key then says so instead of a number.
+        associate
+            .net_charge()
+            .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain)
     )
 }
 
@@ -259,10 +263,11 @@ pub fn factor_of(entity: &Entity) -> Option<Factor> {
                 format!("[{}]", crate::notation::render_term(&term, Style::Ascii)),
                 format!("[{unicode_name}]"),
                 format!("[{}]", crate::notation::render_term(&term, Style::Latex)),
-                if charge.is_integer() {
-                    i32::try_from(*charge.numer()).unwrap_or(0)
-                } else {
-                    0
+                match charge {
+                    Ok(charge) if charge.is_integer() => {
+                        i32::try_from(*charge.numer()).unwrap_or(0)
+                    }
+                    _ => 0,
                 },
             )
         }
@@ -324,7 +329,7 @@ pub fn mass_action_law(reaction: &Reaction, label: Option<&str>) -> Result<Law, 
         let signed = if right {
             term.coefficient
         } else {
-            -term.coefficient
+            term.coefficient.checked_neg()?
         };
         match factors.iter_mut().find(|f| f.key == factor.key) {
             Some(existing) => existing.exponent = number::add(existing.exponent, signed)?,
@@ -450,8 +455,13 @@ impl Law {
     fn product(&self, style: Style, keep: impl Fn(&Factor) -> bool, sign: i64) -> Vec<String> {
         self.factors
             .iter()
-            .filter(|f| keep(f) && (f.exponent * Q::from_integer(sign)) > Q::from_integer(0))
-            .map(|f| power(f.symbol(style), f.exponent * Q::from_integer(sign), style))
+            .filter(|f| keep(f))
+            .filter_map(|f| {
+                // Only i64::MIN has no negative; such an exponent is left out
+                // rather than written wrapped.
+                let e = f.exponent.checked_mul_int(sign).ok()?;
+                (e > Q::from_integer(0)).then(|| power(f.symbol(style), e, style))
+            })
             .collect()
     }
 
@@ -502,27 +512,33 @@ impl Law {
     }
 
     /// Sum of exponents over concentrations (lattice species set to 1).
-    pub fn concentration_order(&self) -> Q {
-        self.factors
-            .iter()
-            .filter(|f| f.kind.is_concentration())
-            .map(|f| f.exponent)
-            .sum()
+    pub fn concentration_order(&self) -> Result<Q, Overflow> {
+        number::sum(
+            self.factors
+                .iter()
+                .filter(|f| f.kind.is_concentration())
+                .map(|f| f.exponent),
+        )
     }
 
     /// Sum of exponents over gas pressures.
-    pub fn pressure_order(&self) -> Q {
-        self.factors
-            .iter()
-            .filter(|f| f.kind == FactorKind::Gas)
-            .map(|f| f.exponent)
-            .sum()
+    pub fn pressure_order(&self) -> Result<Q, Overflow> {
+        number::sum(
+            self.factors
+                .iter()
+                .filter(|f| f.kind == FactorKind::Gas)
+                .map(|f| f.exponent),
+        )
     }
 
     /// The units K carries, in words.
     pub fn units_text(&self, host: Option<&str>) -> String {
-        let c = self.concentration_order();
-        let p = self.pressure_order();
+        let (Ok(c), Ok(p)) = (self.concentration_order(), self.pressure_order()) else {
+            return format!(
+                "the orders of {} are beyond the exact range (about 9.2e18)",
+                self.k_symbol(Style::Unicode)
+            );
+        };
         let zero = Q::from_integer(0);
         let per = host.map_or_else(
             || "per formula unit of the host".to_string(),
@@ -556,7 +572,8 @@ impl Law {
             let _ = write!(
                 text,
                 "; with concentrations in cm⁻³ instead it would carry cm^{}",
-                number::to_plain(-c * Q::from_integer(3))
+                c.checked_mul_int(-3)
+                    .map_or_else(|_| "(beyond the exact range)".to_string(), number::to_plain)
             );
         }
         text
@@ -600,8 +617,8 @@ mod tests {
         );
         assert!(l.text(Style::Latex).contains("\\frac{"));
         assert!(l.assumptions.iter().any(|a| a.contains("[O_O×] ≈ 1")));
-        assert_eq!(l.concentration_order(), Q::from_integer(3));
-        assert_eq!(l.pressure_order(), Q::new(1, 2));
+        assert_eq!(l.concentration_order(), Ok(Q::from_integer(3)));
+        assert_eq!(l.pressure_order(), Ok(Q::new(1, 2)));
     }
 
     #[test]

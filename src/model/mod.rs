@@ -19,12 +19,12 @@ pub mod thermo;
 pub use read::*;
 
 use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::number::{self, Q};
+use crate::base::number::{self, Overflow, Q};
 use crate::host::{Host, SiteLookup};
 use crate::model::law::{Factor, FactorKind, Law, mass_action_law};
 use crate::model::network::{NetworkError, Row};
 use crate::model::thermo::{Thermo, sig};
-use crate::notation::{Entity, Occupant, Site, Species, Style};
+use crate::notation::{Entity, Occupant, Site, Span, Species, Style};
 use std::collections::BTreeMap;
 
 /// Default pO2 range of a sweep, in bar.
@@ -153,34 +153,40 @@ fn content_key(species: &Species) -> String {
     law::species_key(&neutral)
 }
 
-fn content_of(entity: &Entity, factor: Q, out: &mut Vec<(String, Q)>) {
+fn content_of(entity: &Entity, factor: Q, out: &mut Vec<(String, Q)>) -> Result<(), Overflow> {
     match entity {
         Entity::Species(s) => {
             if matches!(s.occupant, Occupant::Electron | Occupant::Hole) {
-                return;
+                return Ok(());
             }
             let key = content_key(s);
             match out.iter_mut().find(|(k, _)| *k == key) {
-                Some((_, n)) => *n += factor,
+                Some((_, n)) => *n = number::add(*n, factor)?,
                 None => out.push((key, factor)),
             }
         }
         Entity::Associate(a) => {
             for part in &a.parts {
-                content_of(&part.entity, factor * part.coefficient, out);
+                content_of(&part.entity, number::mul(factor, part.coefficient)?, out)?;
             }
         }
         Entity::Compound(_) | Entity::Nil => {}
     }
+    Ok(())
 }
 
-fn sites_of(entity: &Entity, host: &Host, factor: Q, out: &mut Vec<(usize, Q)>) {
+fn sites_of(
+    entity: &Entity,
+    host: &Host,
+    factor: Q,
+    out: &mut Vec<(usize, Q)>,
+) -> Result<(), Overflow> {
     match entity {
         Entity::Species(s) => {
             if let Some(Site::Lattice { element, label }) = &s.site {
                 if let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) {
                     match out.iter_mut().find(|(k, _)| *k == i) {
-                        Some((_, n)) => *n += factor,
+                        Some((_, n)) => *n = number::add(*n, factor)?,
                         None => out.push((i, factor)),
                     }
                 }
@@ -188,22 +194,38 @@ fn sites_of(entity: &Entity, host: &Host, factor: Q, out: &mut Vec<(usize, Q)>) 
         }
         Entity::Associate(a) => {
             for part in &a.parts {
-                sites_of(&part.entity, host, factor * part.coefficient, out);
+                sites_of(
+                    &part.entity,
+                    host,
+                    number::mul(factor, part.coefficient)?,
+                    out,
+                )?;
             }
         }
         Entity::Compound(_) | Entity::Nil => {}
     }
+    Ok(())
 }
 
-fn frozen_identity(entity: &Entity) -> Option<String> {
-    match entity {
+/// A P107 for a model line whose exact sums left the `i64` range.
+fn model_overflow(span: Span, what: &str) -> Diagnostic {
+    Diagnostic::new(
+        Code::Number,
+        span,
+        format!("{what} grew beyond the exact range (about 9.2e18)"),
+    )
+    .with_help("scale the coefficients down")
+}
+
+fn frozen_identity(entity: &Entity) -> Result<Option<String>, Overflow> {
+    Ok(match entity {
         Entity::Species(s) => match s.occupant {
             Occupant::Electron | Occupant::Hole => None,
             _ => Some(content_key(s)),
         },
         Entity::Associate(_) => {
             let mut content = Vec::new();
-            content_of(entity, Q::from_integer(1), &mut content);
+            content_of(entity, Q::from_integer(1), &mut content)?;
             content.sort();
             let parts: Vec<String> = content
                 .iter()
@@ -212,15 +234,15 @@ fn frozen_identity(entity: &Entity) -> Option<String> {
             Some(format!("({})", parts.join(" ")))
         }
         _ => None,
-    }
+    })
 }
 
-fn model_species(factor: &Factor, host: &Host) -> ModelSpecies {
+fn model_species(factor: &Factor, host: &Host) -> Result<ModelSpecies, Overflow> {
     let mut content = Vec::new();
-    content_of(&factor.entity, Q::from_integer(1), &mut content);
+    content_of(&factor.entity, Q::from_integer(1), &mut content)?;
     let mut sites = Vec::new();
-    sites_of(&factor.entity, host, Q::from_integer(1), &mut sites);
-    ModelSpecies {
+    sites_of(&factor.entity, host, Q::from_integer(1), &mut sites)?;
+    Ok(ModelSpecies {
         key: factor.key.clone(),
         kind: factor.kind,
         charge: factor.charge,
@@ -229,8 +251,8 @@ fn model_species(factor: &Factor, host: &Host) -> ModelSpecies {
         latex: factor.latex.clone(),
         sites,
         content,
-        frozen_identity: frozen_identity(&factor.entity),
-    }
+        frozen_identity: frozen_identity(&factor.entity)?,
+    })
 }
 
 /// Electroneutrality of charged species `(symbol, charge)`: the negative
@@ -444,7 +466,13 @@ fn amount_per_formula_unit(fix: &FixLine, host: &Host) -> Result<(f64, String), 
             let Some(z) = element else {
                 return Err(need_site());
             };
-            let a = count(formula.count(z));
+            // A float context: sum the written counts as floats, never overflowing.
+            let a: f64 = formula
+                .atoms
+                .iter()
+                .filter(|(e, _)| *e == z)
+                .map(|(_, n)| count(*n))
+                .sum();
             if a <= 0.0 {
                 return Err(bad(
                     format!(
@@ -595,6 +623,13 @@ impl Model {
             };
             let mut row = Row::default();
             let mut identity_change: BTreeMap<String, Q> = BTreeMap::new();
+            let too_large = || {
+                locate(
+                    r.line,
+                    model_overflow(r.reaction.span.clone(), "the species of this reaction"),
+                )
+            };
+            let mut overflow = false;
             let mut electronic = true;
             for f in &law.factors {
                 match f.kind {
@@ -616,25 +651,42 @@ impl Model {
                         row.gases.push((index, f.exponent));
                     }
                     FactorKind::Phase => electronic = false,
-                    FactorKind::Lattice => {
-                        if let Some(id) = frozen_identity(&f.entity) {
-                            *identity_change.entry(id).or_default() += f.exponent;
+                    FactorKind::Lattice => match frozen_identity(&f.entity) {
+                        Ok(Some(id)) => {
+                            let slot = identity_change.entry(id).or_default();
+                            overflow |= number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
                         }
-                    }
+                        Ok(None) => {}
+                        Err(_) => overflow = true,
+                    },
                     _ => {
                         let index = match factor_species.iter().position(|s| s.key == f.key) {
                             Some(i) => i,
                             None => {
-                                factor_species.push(model_species(f, &host));
+                                let Ok(species) = model_species(f, &host) else {
+                                    overflow = true;
+                                    continue;
+                                };
+                                factor_species.push(species);
                                 factor_species.len() - 1
                             }
                         };
                         row.species.push((index, f.exponent));
-                        if let Some(id) = frozen_identity(&f.entity) {
-                            *identity_change.entry(id).or_default() += f.exponent;
+                        match frozen_identity(&f.entity) {
+                            Ok(Some(id)) => {
+                                let slot = identity_change.entry(id).or_default();
+                                overflow |=
+                                    number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
+                            }
+                            Ok(None) => {}
+                            Err(_) => overflow = true,
                         }
                     }
                 }
+            }
+            if overflow {
+                errors.push(too_large());
+                continue;
             }
             if identity_change.values().any(|v| *v != Q::from_integer(0)) {
                 electronic = false;
@@ -717,8 +769,19 @@ impl Model {
                 // A dopant that takes part in no reaction: a fixed charged species.
                 if let Some(f) = law::factor_of(&Entity::Species(fix.subject.clone())) {
                     if f.kind == FactorKind::Defect {
-                        factor_species.push(model_species(&f, &host));
-                        present = true;
+                        match model_species(&f, &host) {
+                            Ok(species) => {
+                                factor_species.push(species);
+                                present = true;
+                            }
+                            Err(_) => {
+                                errors.push(locate(
+                                    fix.line,
+                                    model_overflow(0..0, "the species of this line"),
+                                ));
+                                continue;
+                            }
+                        }
                     }
                 }
             }
@@ -768,13 +831,21 @@ impl Model {
             t.weights = factor_species
                 .iter()
                 .map(|s| {
-                    s.content
-                        .iter()
-                        .filter(|(k, _)| *k == t.identity)
-                        .map(|(_, n)| *n)
-                        .sum()
+                    number::sum(
+                        s.content
+                            .iter()
+                            .filter(|(k, _)| *k == t.identity)
+                            .map(|(_, n)| *n),
+                    )
                 })
-                .collect();
+                .collect::<Result<_, _>>()
+                .unwrap_or_else(|_| {
+                    errors.push(locate(
+                        t.line,
+                        model_overflow(0..0, "the amounts of this total"),
+                    ));
+                    Vec::new()
+                });
         }
 
         if !errors.is_empty() {

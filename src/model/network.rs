@@ -17,6 +17,8 @@
 //! span it. Anything else (dependent equilibria, a constraint the reactions
 //! break, a species nothing pins down) is a `NetworkError`.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 use crate::base::linalg::{self, Matrix, R};
 use crate::base::number::{Overflow, Q};
 use num_traits::Zero;
@@ -256,6 +258,7 @@ impl Network {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::base::number;
 
     fn q(n: i64) -> Q {
         Q::from_integer(n)
@@ -271,10 +274,10 @@ mod tests {
         let net = build(2, 1, &rows, &[2, -1], &[]).expect("well posed");
         assert_eq!(net.levels, vec![Level::Charge]);
         // Mass action holds for any y: ln V + 2 ln n = ln K − ½ ln p.
-        let combo_k: Q = net.k[0][0] + q(2) * net.k[1][0];
-        let combo_p: Q = net.q[0][0] + q(2) * net.q[1][0];
-        assert_eq!(combo_k, q(1));
-        assert_eq!(combo_p, Q::new(-1, 2));
+        let combo_k = number::sum_checked([Ok(net.k[0][0]), q(2).checked_mul(net.k[1][0])]);
+        let combo_p = number::sum_checked([Ok(net.q[0][0]), q(2).checked_mul(net.q[1][0])]);
+        assert_eq!(combo_k, Ok(q(1)));
+        assert_eq!(combo_p, Ok(Q::new(-1, 2)));
     }
 
     #[test]

@@ -10,6 +10,10 @@
 //! it does not know are errors with their column, never guesses.
 //! Grammar and the list of commands: grammar/repl.md, "LaTeX input".
 
+// Byte offsets and indices here stay within one line of input, so their
+// sums are bounded by its length: saturating steps never saturate there, and
+// spell out that no overflow check is wanted.
+
 use super::{ARROWS, Arrow, Span, takes_text_over};
 use crate::base::diagnostic::{Code, Diagnostic};
 
@@ -39,7 +43,7 @@ impl Normalised {
             };
         }
         let start = at(span.start).map_or(self.source_len, |s| s.start);
-        let end = at(span.end - 1).map_or(self.source_len, |s| s.end);
+        let end = at(span.end.saturating_sub(1)).map_or(self.source_len, |s| s.end);
         start..end.max(start)
     }
 
@@ -47,7 +51,7 @@ impl Normalised {
     /// sits at `offset` of the line the user sees.
     pub fn relocate(&self, mut diagnostic: Diagnostic, offset: usize) -> Diagnostic {
         let span = self.source_span(diagnostic.span.clone());
-        diagnostic.span = span.start + offset..span.end + offset;
+        diagnostic.span = span.start.saturating_add(offset)..span.end.saturating_add(offset);
         diagnostic
     }
 }
@@ -70,11 +74,14 @@ pub fn normalise(source: &str) -> Result<Normalised, Diagnostic> {
     };
     reader.run(0..source.len(), Mode::Math)?;
     // Trim the spaces that layout commands leave at either end.
-    let lead = reader.out.len() - reader.out.trim_start().len();
+    let lead = reader
+        .out
+        .len()
+        .saturating_sub(reader.out.trim_start().len());
     let text = reader.out.trim().to_string();
     let map = reader
         .map
-        .get(lead..lead + text.len())
+        .get(lead..lead.saturating_add(text.len()))
         .map(<[Span]>::to_vec)
         .unwrap_or_default();
     Ok(Normalised {
@@ -203,7 +210,7 @@ impl Reader<'_> {
 
     fn skip_spaces(&self, mut i: usize, end: usize) -> usize {
         while i < end && self.char_at(i).is_some_and(char::is_whitespace) {
-            i += self.char_at(i).map_or(1, char::len_utf8);
+            i = i.saturating_add(self.char_at(i).map_or(1, char::len_utf8));
         }
         i
     }
@@ -211,21 +218,23 @@ impl Reader<'_> {
     /// Reads a command name after the backslash at `i`: letters, or one other
     /// character. Returns the name and the index after it.
     fn command_at(&self, i: usize, end: usize) -> Result<(&str, usize), Diagnostic> {
-        let start = i + 1;
+        let start = i.saturating_add(1);
         let letters = self.src.get(start..end).map_or(0, |s| {
             s.find(|c: char| !c.is_ascii_alphabetic())
                 .unwrap_or(s.len())
         });
         if letters > 0 {
-            return Ok((&self.src[start..start + letters], start + letters));
+            let end = start.saturating_add(letters);
+            return Ok((&self.src[start..end], end));
         }
         match self.char_at(start) {
             Some(c) if start < end => {
-                Ok((&self.src[start..start + c.len_utf8()], start + c.len_utf8()))
+                let end = start.saturating_add(c.len_utf8());
+                Ok((&self.src[start..end], end))
             }
             _ => Err(error(
                 Code::LatexCommand,
-                i..i + 1,
+                i..i.saturating_add(1),
                 "a backslash with no command after it",
             )
             .with_help("remove the stray `\\`")),
@@ -240,10 +249,11 @@ impl Reader<'_> {
             let Some(c) = self.char_at(i) else { break };
             match c {
                 '\\' => {
-                    i += 1 + self.char_at(i + 1).map_or(0, char::len_utf8);
+                    let next = i.saturating_add(1);
+                    i = next.saturating_add(self.char_at(next).map_or(0, char::len_utf8));
                     continue;
                 }
-                '{' => depth += 1,
+                '{' => depth = depth.saturating_add(1),
                 '}' => {
                     depth = depth.saturating_sub(1);
                     if depth == 0 {
@@ -252,11 +262,11 @@ impl Reader<'_> {
                 }
                 _ => {}
             }
-            i += c.len_utf8();
+            i = i.saturating_add(c.len_utf8());
         }
         Err(error(
             Code::LatexBraces,
-            open..open + 1,
+            open..open.saturating_add(1),
             "this `{` is never closed",
         )
         .with_help("add the matching `}`"))
@@ -270,7 +280,7 @@ impl Reader<'_> {
         match self.char_at(i) {
             Some('{') if i < end => {
                 let close = self.closing_brace(i, end)?;
-                Ok((i + 1..close, close + 1))
+                Ok((i.saturating_add(1)..close, close.saturating_add(1)))
             }
             Some('\\') if i < end => {
                 let (name, mut next) = self.command_at(i, end)?;
@@ -285,7 +295,10 @@ impl Reader<'_> {
                 }
                 Ok((i..next, next))
             }
-            Some(c) if i < end && c != '}' => Ok((i..i + c.len_utf8(), i + c.len_utf8())),
+            Some(c) if i < end && c != '}' => Ok((
+                i..i.saturating_add(c.len_utf8()),
+                i.saturating_add(c.len_utf8()),
+            )),
             _ => Err(error(
                 Code::LatexBraces,
                 owner.clone(),
@@ -309,11 +322,13 @@ impl Reader<'_> {
             return Ok(i);
         }
         match self.src.get(j..end).and_then(|s| s.find(']')) {
-            Some(close) => Ok(j + close + 1),
-            None => Err(
-                error(Code::LatexBraces, j..j + 1, "this `[` is never closed")
-                    .with_help("add the matching `]`"),
-            ),
+            Some(close) => Ok(j.saturating_add(close).saturating_add(1)),
+            None => Err(error(
+                Code::LatexBraces,
+                j..j.saturating_add(1),
+                "this `[` is never closed",
+            )
+            .with_help("add the matching `]`")),
         }
     }
 
@@ -322,7 +337,7 @@ impl Reader<'_> {
         let mut i = range.start;
         while i < end {
             let Some(c) = self.char_at(i) else { break };
-            let here = i..i + c.len_utf8();
+            let here = i..i.saturating_add(c.len_utf8());
             match c {
                 c if c.is_whitespace() => {
                     let next = self.skip_spaces(i, end);
@@ -339,20 +354,20 @@ impl Reader<'_> {
                 }
                 '$' | '&' => {
                     self.begin_markup(i);
-                    i += 1;
+                    i = i.saturating_add(1);
                 }
                 '%' => return Ok(()),
                 '~' => {
                     self.emit(" ", here);
-                    i += 1;
+                    i = i.saturating_add(1);
                 }
                 '{' => {
                     let close = self.closing_brace(i, end)?;
                     let before = self.out.len();
                     self.begin_markup(i);
-                    self.run(i + 1..close, mode)?;
-                    self.end_markup(before, close + 1);
-                    i = close + 1;
+                    self.run(i.saturating_add(1)..close, mode)?;
+                    self.end_markup(before, close.saturating_add(1));
+                    i = close.saturating_add(1);
                 }
                 '}' => {
                     return Err(error(Code::LatexBraces, here, "this `}` closes nothing")
@@ -364,7 +379,7 @@ impl Reader<'_> {
                 _ => {
                     let text = &self.src[here.clone()];
                     self.emit(text, here);
-                    i += c.len_utf8();
+                    i = i.saturating_add(c.len_utf8());
                 }
             }
         }
@@ -374,7 +389,7 @@ impl Reader<'_> {
     /// `_x`, `_{..}`: a site (`_O`, `_{Fe:A}`) or, when only a number, a count
     /// in a formula (`O_2` -> `O2`).
     fn subscript(&mut self, at: usize, end: usize) -> Result<usize, Diagnostic> {
-        let (inner, next) = self.argument(at + 1, end, at..at + 1)?;
+        let (inner, next) = self.argument(at.saturating_add(1), end, at..at.saturating_add(1))?;
         let before = self.out.len();
         self.run(inner.clone(), Mode::Subscript)?;
         let written = &self.out[before..];
@@ -388,7 +403,8 @@ impl Reader<'_> {
             let (open, close) = if braced { ("_{", "}") } else { ("_", "") };
             self.out.insert_str(before, open);
             for k in 0..open.len() {
-                self.map.insert(before + k, at..at + 1);
+                self.map
+                    .insert(before.saturating_add(k), at..at.saturating_add(1));
             }
             if braced {
                 self.emit(close, next.saturating_sub(1)..next);
@@ -400,8 +416,8 @@ impl Reader<'_> {
 
     /// `^x`, `^{..}`: an effective charge, written as `^` and ASCII marks.
     fn superscript(&mut self, at: usize, end: usize) -> Result<usize, Diagnostic> {
-        let (inner, next) = self.argument(at + 1, end, at..at + 1)?;
-        self.emit("^", at..at + 1);
+        let (inner, next) = self.argument(at.saturating_add(1), end, at..at.saturating_add(1))?;
+        self.emit("^", at..at.saturating_add(1));
         let before = self.out.len();
         self.marks(inner, at)?;
         if self.out.len() == before {
@@ -422,22 +438,22 @@ impl Reader<'_> {
         let mut repeat: Option<(usize, Span)> = None;
         while i < range.end {
             let Some(c) = self.char_at(i) else { break };
-            let here = i..i + c.len_utf8();
+            let here = i..i.saturating_add(c.len_utf8());
             let (mark, next) = match c {
                 c if c.is_whitespace() => {
-                    i += c.len_utf8();
+                    i = i.saturating_add(c.len_utf8());
                     continue;
                 }
                 '{' => {
                     let close = self.closing_brace(i, range.end)?;
-                    self.marks(i + 1..close, caret)?;
-                    i = close + 1;
+                    self.marks(i.saturating_add(1)..close, caret)?;
+                    i = close.saturating_add(1);
                     continue;
                 }
                 '0'..='9' => {
                     let digits_end = self.src[i..range.end]
                         .find(|c: char| !c.is_ascii_digit())
-                        .map_or(range.end, |n| i + n);
+                        .map_or(range.end, |n| i.saturating_add(n));
                     let n: usize = self.src[i..digits_end].parse().unwrap_or(usize::MAX);
                     if n == 0 || n > 8 {
                         return Err(error(
@@ -511,7 +527,7 @@ impl Reader<'_> {
                 "a count with no charge mark after it",
             )
             .with_help("write the mark after the count, e.g. `^{2\\bullet}`; real charges such as `2+` are not effective charges")
-            .with_label(format!("superscript at column {}", caret + 1)));
+            .with_label(format!("superscript at column {}", caret.saturating_add(1))));
         }
         Ok(())
     }
@@ -589,7 +605,7 @@ impl Reader<'_> {
             "left" | "right" | "bigl" | "bigr" | "Bigl" | "Bigr" | "big" | "Big" => {
                 let n = self.skip_spaces(next, end);
                 // `\left.` is an invisible delimiter.
-                Ok(if self.char_at(n) == Some('.') { n + 1 } else { n })
+                Ok(if self.char_at(n) == Some('.') { n.saturating_add(1) } else { n })
             }
             n if arrow_command(n).is_some() => {
                 let (arrow, over) = arrow_command(n).unwrap_or(("->", false));

@@ -5,6 +5,8 @@
 //! why the text is not notation. Meaning (does it balance, is the charge
 //! plausible) is the checker's business, not the parser's.
 
+#![deny(clippy::arithmetic_side_effects)]
+
 pub mod latex_input;
 mod parse;
 mod render;
@@ -18,7 +20,7 @@ pub use render::{
     render_term,
 };
 
-use crate::base::number::Q;
+use crate::base::number::{self, Overflow, Q};
 use std::ops::Range;
 
 /// Byte range within the source line.
@@ -57,13 +59,10 @@ pub struct Formula {
 }
 
 impl Formula {
-    /// Count of one element, summed over every place it is written.
-    pub fn count(&self, z: u8) -> Q {
-        self.atoms
-            .iter()
-            .filter(|(e, _)| *e == z)
-            .map(|(_, n)| *n)
-            .sum()
+    /// Count of one element, summed over every place it is written, or
+    /// `Overflow` when the sum leaves the exact range.
+    pub fn count(&self, z: u8) -> Result<Q, Overflow> {
+        number::sum(self.atoms.iter().filter(|(e, _)| *e == z).map(|(_, n)| *n))
     }
 
     pub fn contains(&self, z: u8) -> bool {
@@ -168,21 +167,25 @@ pub struct Associate {
 }
 
 impl Associate {
-    /// Sum of the parts' effective charges times their coefficients.
-    pub fn parts_charge(&self) -> Q {
-        self.parts
-            .iter()
-            .map(|t| match &t.entity {
-                Entity::Species(s) => t.coefficient * Q::from_integer(i64::from(s.charge)),
-                _ => Q::from_integer(0),
-            })
-            .sum()
+    /// Sum of the parts' effective charges times their coefficients, or
+    /// `Overflow` when it leaves the exact range.
+    pub fn parts_charge(&self) -> Result<Q, Overflow> {
+        number::sum_checked(self.parts.iter().map(|t| {
+            match &t.entity {
+                Entity::Species(s) => t
+                    .coefficient
+                    .checked_mul(Q::from_integer(i64::from(s.charge))),
+                _ => Ok(Q::from_integer(0)),
+            }
+        }))
     }
 
     /// The net charge: as declared, or the parts' sum when none was written.
-    pub fn net_charge(&self) -> Q {
-        self.charge
-            .map_or_else(|| self.parts_charge(), |c| Q::from_integer(i64::from(c)))
+    pub fn net_charge(&self) -> Result<Q, Overflow> {
+        self.charge.map_or_else(
+            || self.parts_charge(),
+            |c| Ok(Q::from_integer(i64::from(c))),
+        )
     }
 }
 

@@ -138,6 +138,10 @@ pub fn takes_text_over(spelling: &str) -> bool {
     spelling.starts_with("\\x")
 }
 
+// Byte offsets and indices below stay within one line of input, so their
+// sums and differences are bounded by its length: saturating steps never
+// saturate there, and spell out that no overflow check is wanted.
+
 const NIL_SPELLINGS: &[&str] = &["nil", "null", "0", "∅", "Ø", "\\emptyset", "\\varnothing"];
 
 fn trim_span(src: &str, span: Span) -> Span {
@@ -147,8 +151,12 @@ fn trim_span(src: &str, span: Span) -> Span {
         let at = span.start.min(src.len());
         return at..at;
     };
-    let start = span.start + (text.len() - text.trim_start().len());
-    let end = span.end - (text.len() - text.trim_end().len());
+    let start = span
+        .start
+        .saturating_add(text.len().saturating_sub(text.trim_start().len()));
+    let end = span
+        .end
+        .saturating_sub(text.len().saturating_sub(text.trim_end().len()));
     start..end.max(start)
 }
 
@@ -184,9 +192,9 @@ pub fn arrow_at(s: &str) -> Option<(usize, Arrow)> {
         let mut rest = &s[len..];
         for (open, close) in [('[', ']'), ('{', '}')] {
             if rest.starts_with(open) {
-                let end = rest.find(close)?;
-                len += end + 1;
-                rest = &rest[end + 1..];
+                let end = rest.find(close)?.saturating_add(1);
+                len = len.saturating_add(end);
+                rest = &rest[end..];
             }
         }
     }
@@ -210,8 +218,9 @@ const UNICODE_SECOND: [bool; 256] = {
 /// The first arrow anywhere in `text` (brackets not considered), with its
 /// span and kind.
 pub fn find_arrow(text: &str) -> Option<(Span, Arrow)> {
-    text.char_indices()
-        .find_map(|(i, _)| arrow_at(&text[i..]).map(|(len, arrow)| (i..i + len, arrow)))
+    text.char_indices().find_map(|(i, _)| {
+        arrow_at(&text[i..]).map(|(len, arrow)| (i..i.saturating_add(len), arrow))
+    })
 }
 
 fn closing(open: char) -> char {
@@ -224,17 +233,17 @@ fn closing(open: char) -> char {
 
 impl<'a> Parser_<'a> {
     fn pos(&self, s: &str) -> usize {
-        s.as_ptr() as usize - self.src.as_ptr() as usize
+        (s.as_ptr() as usize).saturating_sub(self.src.as_ptr() as usize)
     }
 
     fn span_of(&self, s: &str) -> Span {
         let p = self.pos(s);
-        p..p + s.len()
+        p..p.saturating_add(s.len())
     }
 
     fn error(&mut self, code: Code, span: Span, message: impl Into<String>) -> &mut Diagnostic {
         self.diags.push(Diagnostic::new(code, span, message));
-        let last = self.diags.len() - 1;
+        let last = self.diags.len().saturating_sub(1);
         &mut self.diags[last]
     }
 
@@ -253,7 +262,7 @@ impl<'a> Parser_<'a> {
         let bytes = text.as_bytes();
         let mut i = 0;
         while let Some(&byte) = bytes.get(i) {
-            let at = within.start + i;
+            let at = within.start.saturating_add(i);
             let c = char::from(byte);
             if stack.is_empty() && matches!(byte, b'\\' | b'<' | b'-' | b'=' | 0xE2) {
                 if let Some((len, kind)) = arrow_at(&text[i..]) {
@@ -261,7 +270,7 @@ impl<'a> Parser_<'a> {
                         let first_col = crate::base::diagnostic::column_of(self.src, first.start);
                         self.error(
                             Code::ExtraArrow,
-                            at..at + len,
+                            at..at.saturating_add(len),
                             "a second arrow in one reaction",
                         )
                         .help = Some(format!(
@@ -269,10 +278,10 @@ impl<'a> Parser_<'a> {
                         ));
                         ok = false;
                     } else {
-                        arrow = Some((at..at + len, kind));
+                        arrow = Some((at..at.saturating_add(len), kind));
                         arrow_plus = pluses.len();
                     }
-                    i += len;
+                    i = i.saturating_add(len);
                     continue;
                 }
             }
@@ -283,26 +292,30 @@ impl<'a> Parser_<'a> {
                     Some((open, open_at)) => {
                         self.error(
                             Code::Brackets,
-                            open_at..at + 1,
+                            open_at..at.saturating_add(1),
                             format!("`{open}` is closed by `{c}`"),
                         )
                         .help = Some(format!("close it with `{}`", closing(open)));
                         ok = false;
                     }
                     None => {
-                        self.error(Code::Brackets, at..at + 1, format!("`{c}` closes nothing"));
+                        self.error(
+                            Code::Brackets,
+                            at..at.saturating_add(1),
+                            format!("`{c}` closes nothing"),
+                        );
                         ok = false;
                     }
                 },
                 '+' if stack.is_empty() => pluses.push(at),
                 _ => {}
             }
-            i += 1;
+            i = i.saturating_add(1);
         }
         for (open, at) in stack.drain(..) {
             self.error(
                 Code::Brackets,
-                at..at + open.len_utf8(),
+                at..at.saturating_add(open.len_utf8()),
                 format!("`{open}` is never closed"),
             )
             .help = Some(format!("add `{}` at the end of the term", closing(open)));
@@ -329,21 +342,21 @@ impl<'a> Parser_<'a> {
 
     fn side(&mut self, span: Span, pluses: &[usize], name: &str) -> Option<Vec<Term>> {
         // Term i runs from after `+` number i - 1 to before `+` number i.
-        let starts = std::iter::once(span.start).chain(pluses.iter().map(|p| p + 1));
+        let starts = std::iter::once(span.start).chain(pluses.iter().map(|p| p.saturating_add(1)));
         let ends = pluses.iter().copied().chain(std::iter::once(span.end));
-        let mut terms = Vec::with_capacity(pluses.len() + 1);
+        let mut terms = Vec::with_capacity(pluses.len().saturating_add(1));
         let mut ok = true;
         for (start, end) in starts.zip(ends) {
             let term_span = trim_span(self.src, start..end);
             if term_span.is_empty() {
                 let at = if term_span.start > span.start {
-                    term_span.start - 1
+                    term_span.start.saturating_sub(1)
                 } else {
                     term_span.start
                 };
                 self.error(
                     Code::EmptyTerm,
-                    at..(at + 1).min(self.src.len()).max(at),
+                    at..at.saturating_add(1).min(self.src.len()).max(at),
                     format!("the {name} side has an empty term"),
                 )
                 .help = Some("remove the extra `+`, or write `nil` for the perfect crystal".into());
@@ -500,7 +513,7 @@ impl<'a> Parser_<'a> {
             );
             return None;
         }
-        let after = &text[close + 1..];
+        let after = &text[close..][1..];
         let (rest, marks) = self.charge(after)?;
         let span = self.pos(text)..self.pos(rest);
         let (charge, style) = match marks {
@@ -533,7 +546,7 @@ impl<'a> Parser_<'a> {
                 let name = if electron { "an electron" } else { "a hole" };
                 self.error(
                     Code::ElectronicSpecies,
-                    self.pos(start)..self.pos(rest) + site_end,
+                    self.pos(start)..self.pos(rest).saturating_add(site_end),
                     format!("{name} carries no site"),
                 )
                 .help = Some(format!(
@@ -563,7 +576,7 @@ impl<'a> Parser_<'a> {
         }
         let (rest, occupant) = self.occupant(text)?;
         let Some(rest) = rest.strip_prefix('_') else {
-            let span = self.span_of(&start[..start.len() - rest.len()]);
+            let span = self.span_of(&start[..start.len().saturating_sub(rest.len())]);
             self.error(Code::MissingSite, span, "a defect needs a site subscript")
                 .help = Some("write `_` and the site: `V_O..`, `Y_Zr'`, `O_i''`".into());
             return None;
@@ -615,7 +628,7 @@ impl<'a> Parser_<'a> {
             return None;
         }
         if !escaped {
-            self.case_warning(&body[..body.len() - rest.len()], &formula);
+            self.case_warning(&body[..body.len().saturating_sub(rest.len())], &formula);
         }
         Some((rest, Occupant::Atoms { formula, escaped }))
     }
@@ -647,9 +660,10 @@ impl<'a> Parser_<'a> {
         let result: IResult<&str, &str> = alt((tag("i"), element_symbol)).parse(inner);
         let Ok((rest, name)) = result else {
             if inner.starts_with(|c: char| c.is_ascii_uppercase()) {
-                let len = 1 + inner[1..]
+                let len = inner[1..]
                     .find(|c: char| !c.is_ascii_lowercase())
-                    .unwrap_or(inner.len() - 1);
+                    .unwrap_or(inner.len().saturating_sub(1))
+                    .saturating_add(1);
                 self.unknown_element(&inner[..len]);
                 return None;
             }
@@ -798,7 +812,7 @@ impl<'a> Parser_<'a> {
             };
             rest = after;
         }
-        let written = &text[..text.len() - rest.len()];
+        let written = &text[..text.len().saturating_sub(rest.len())];
         if style.is_none() {
             if caret {
                 self.error(
@@ -830,7 +844,11 @@ impl<'a> Parser_<'a> {
         }
         Some((
             rest,
-            Some((plus - minus, style.unwrap_or(MarkStyle::Ascii))),
+            // Both non-negative and one of them zero (mixed signs are refused).
+            Some((
+                plus.saturating_sub(minus),
+                style.unwrap_or(MarkStyle::Ascii),
+            )),
         ))
     }
 
@@ -884,9 +902,10 @@ impl<'a> Parser_<'a> {
                     .help = Some("a formula needs at most a few levels of parentheses".into());
                     return None;
                 }
-                self.depth += 1;
+                // Bounded by MAX_NESTING above.
+                self.depth = self.depth.saturating_add(1);
                 let inner = self.formula(&rest[1..close], true);
-                self.depth -= 1;
+                self.depth = self.depth.saturating_sub(1);
                 let (inner_rest, inner) = inner?;
                 if !inner_rest.is_empty() || inner.atoms.is_empty() {
                     self.error(
@@ -896,7 +915,7 @@ impl<'a> Parser_<'a> {
                     );
                     return None;
                 }
-                let (after, count) = self.count(&rest[close + 1..])?;
+                let (after, count) = self.count(&rest[close..][1..])?;
                 for (z, n) in inner.atoms {
                     atoms.push((z, number::mul(n, count).ok()?));
                 }
@@ -952,7 +971,10 @@ impl<'a> Parser_<'a> {
         if let Ok((rest, digits)) = subscript {
             let ascii: String = digits
                 .chars()
-                .map(|c| char::from(b'0' + (c as u32 - '₀' as u32) as u8))
+                .map(|c| {
+                    // `₀`..`₉` are consecutive code points, as are `0`..`9`.
+                    char::from_digit(u32::from(c).saturating_sub(u32::from('₀')), 10).unwrap_or('0')
+                })
                 .collect();
             return match number::parse_decimal(&ascii) {
                 Ok(q) => Some((rest, q)),
@@ -1044,7 +1066,7 @@ fn matching_close(text: &str) -> Option<usize> {
     let mut depth = 0usize;
     for (i, c) in text.char_indices() {
         match c {
-            '(' | '{' | '[' => depth += 1,
+            '(' | '{' | '[' => depth = depth.saturating_add(1),
             ')' | '}' | ']' => {
                 depth = depth.checked_sub(1)?;
                 if depth == 0 {

@@ -66,11 +66,11 @@ fn decimal_text(q: Q) -> String {
     let (mut twos, mut fives) = (0u32, 0u32);
     while d % 2 == 0 {
         d /= 2;
-        twos += 1;
+        twos = twos.saturating_add(1);
     }
     while d % 5 == 0 {
         d /= 5;
-        fives += 1;
+        fives = fives.saturating_add(1);
     }
     let places = twos.max(fives);
     if d != 1 || places > 18 {
@@ -87,8 +87,10 @@ fn decimal_text(q: Q) -> String {
     };
     let digits = scaled.numer().abs().to_string();
     let places = places as usize;
-    let padded = format!("{digits:0>width$}", width = places + 1);
-    let (whole, frac) = padded.split_at(padded.len() - places);
+    // places ≤ 18 (checked above), and the padding leaves at least one
+    // digit before the point, so neither step saturates.
+    let padded = format!("{digits:0>width$}", width = places.saturating_add(1));
+    let (whole, frac) = padded.split_at(padded.len().saturating_sub(places));
     let sign = if *scaled.numer() < 0 { "-" } else { "" };
     format!("{sign}{whole}.{}", frac.trim_end_matches('0'))
 }
@@ -213,7 +215,8 @@ fn write_species(out: &mut String, species: &Species, style: Style) {
 fn write_associate(out: &mut String, associate: &Associate, style: Style) {
     out.push(if associate.braces { '{' } else { '(' });
     if style == Style::Latex && associate.braces {
-        out.insert(out.len() - 1, '\\');
+        // The brace was just pushed: the text is not empty.
+        out.insert(out.len().saturating_sub(1), '\\');
     }
     for (i, part) in associate.parts.iter().enumerate() {
         if i > 0 {

@@ -128,7 +128,7 @@ fn help(out: &mut dyn Write, p: Palette, d: &Diagnostic) -> io::Result<()> {
 
 fn signed(q: Q) -> String {
     if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(-q))
+        format!("−{}", number::to_plain(q).trim_start_matches('-'))
     } else {
         number::to_plain(q)
     }
@@ -179,10 +179,10 @@ pub fn write_table(
                 format!(
                     "{} {}",
                     site_name(host, *n),
-                    if r >= l {
-                        format!("+{}", number::to_plain(r - l))
-                    } else {
-                        signed(r - l)
+                    match number::sub(*r, *l) {
+                        Ok(d) if r >= l => format!("+{}", number::to_plain(d)),
+                        Ok(d) => signed(d),
+                        Err(_) => "beyond the exact range".to_string(),
                     }
                 )
             })

@@ -913,7 +913,10 @@ pub fn frozen_network(model: &Model) -> Result<Frozen, Diagnostic> {
                     let z = charges[first];
                     if members.iter().all(|&s| charges[s] == z) {
                         for &s in &members {
-                            charge[s] -= Q::from_integer(z.into()) * family[s];
+                            charge[s] = Q::from_integer(z.into())
+                                .checked_mul(family[s])
+                                .and_then(|x| charge[s].checked_sub(x))
+                                .map_err(|_| frozen_error())?;
                         }
                     }
                 }

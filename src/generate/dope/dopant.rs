@@ -8,7 +8,7 @@
 use crate::balance::build::{binary, main_anion};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;
-use crate::base::number::Q;
+use crate::base::number::{self, Q};
 use crate::host::Host;
 use crate::notation::{Formula, parse_formula};
 
@@ -157,7 +157,8 @@ pub fn parse_dopant(text: &str, host: &Host) -> Result<Dopant, Box<Diagnostic>> 
                 Box::new(first.locate(1, text))
             })?;
             let (element, charge) = compound_cation(text, &all, &formula, host)?;
-            (element, charge, Some(merge(&formula)))
+            let merged = merge(&formula).map_err(|o| too_large(text, &all, o))?;
+            (element, charge, Some(merged))
         };
     if charge <= 0 {
         return Err(error(
@@ -246,15 +247,29 @@ fn ion_suffix(rest: &str) -> Option<i64> {
         .and_then(|i| i64::try_from(i + 1).ok())
 }
 
-fn merge(formula: &Formula) -> Formula {
+fn merge(formula: &Formula) -> Result<Formula, number::Overflow> {
     let mut atoms: Vec<(u8, Q)> = Vec::new();
     for (z, n) in &formula.atoms {
         match atoms.iter_mut().find(|(e, _)| e == z) {
-            Some((_, m)) => *m += n,
+            Some((_, m)) => *m = number::add(*m, *n)?,
             None => atoms.push((*z, *n)),
         }
     }
-    Formula { atoms }
+    Ok(Formula { atoms })
+}
+
+/// A K606 for a dopant whose counts or charges leave the exact range.
+fn too_large(
+    text: &str,
+    all: &std::ops::Range<usize>,
+    overflow: number::Overflow,
+) -> Box<Diagnostic> {
+    error(
+        text,
+        all.clone(),
+        format!("`{}`: {overflow}", text.trim()),
+        "write the dopant with the small counts of its formula unit, e.g. `Y2O3`",
+    )
 }
 
 /// The one cation of a dopant compound and its oxidation state, from the
@@ -265,7 +280,7 @@ fn compound_cation(
     formula: &Formula,
     host: &Host,
 ) -> Result<(&'static elements::Element, i64), Box<Diagnostic>> {
-    let formula = merge(formula);
+    let formula = merge(formula).map_err(|o| too_large(text, all, o))?;
     let anion_of = |z: u8| {
         host.sublattices
             .iter()
@@ -306,10 +321,15 @@ fn compound_cation(
     let mut negative = Q::from_integer(0);
     for (z, n) in &formula.atoms {
         if let Some(q) = anion_of(*z) {
-            negative += q * n;
+            negative = number::mul(q, *n)
+                .and_then(|x| number::add(negative, x))
+                .map_err(|o| too_large(text, all, o))?;
         }
     }
-    let state = -negative / count;
+    let state = negative
+        .checked_neg()
+        .and_then(|x| x.checked_div(*count))
+        .map_err(|o| too_large(text, all, o))?;
     let element = elements::by_z(*cation)
         .ok_or_else(|| error(text, all.clone(), "unknown element".into(), SPELLINGS))?;
     if !state.is_integer() {

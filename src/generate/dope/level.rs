@@ -16,7 +16,7 @@
 use super::dopant::Dopant;
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::elements;
-use crate::base::number::{self, Q};
+use crate::base::number::{self, Overflow, Q};
 use crate::host::{Host, SiteLookup};
 use crate::notation::{Entity, Occupant, Reaction, Site, Species, Style, render_species};
 
@@ -79,7 +79,10 @@ pub fn parse_level(text: &str) -> Result<Level, Box<Diagnostic>> {
         };
     }
     match number::parse(number_text) {
-        Ok(q) if q > Q::from_integer(0) => Ok(Level::Exact(q / Q::from_integer(100), unit)),
+        Ok(q) if q > Q::from_integer(0) => match q.checked_div(Q::from_integer(100)) {
+            Ok(y) => Ok(Level::Exact(y, unit)),
+            Err(e) => Err(bad(format!("`{number_text}`: {e}"))),
+        },
         Ok(_) => Err(bad("a dopant level must be above zero".into())),
         Err(e) => Err(bad(format!(
             "`{number_text}`: {e} (exact units take plain decimals, e.g. 8 or 0.5)"
@@ -95,8 +98,16 @@ struct Linear {
 }
 
 impl Linear {
-    fn at(self, m: Q) -> Q {
-        self.a + self.b * m
+    fn at(self, m: Q) -> Result<Q, Overflow> {
+        number::add(self.a, number::mul(self.b, m)?)
+    }
+
+    /// `self + other`, term by term.
+    fn plus(self, other: Linear) -> Result<Linear, Overflow> {
+        Ok(Linear {
+            a: number::add(self.a, other.a)?,
+            b: number::add(self.b, other.b)?,
+        })
     }
 }
 
@@ -108,15 +119,24 @@ struct Ratio {
 }
 
 impl Ratio {
-    fn at(self, m: Q) -> Option<Q> {
-        let d = self.den.at(m);
-        (d != Q::from_integer(0)).then(|| self.num.at(m) / d)
+    /// The value at m; `None` where the denominator is zero.
+    fn at(self, m: Q) -> Result<Option<Q>, Overflow> {
+        let d = self.den.at(m)?;
+        if d == Q::from_integer(0) {
+            return Ok(None);
+        }
+        self.num.at(m)?.checked_div(d).map(Some)
     }
 
     /// The m at which the ratio equals y.
-    fn solve(self, y: Q) -> Option<Q> {
-        let denominator = self.num.b - self.den.b * y;
-        (denominator != Q::from_integer(0)).then(|| (self.den.a * y - self.num.a) / denominator)
+    fn solve(self, y: Q) -> Result<Option<Q>, Overflow> {
+        let denominator = number::sub(self.num.b, number::mul(self.den.b, y)?)?;
+        if denominator == Q::from_integer(0) {
+            return Ok(None);
+        }
+        number::sub(number::mul(self.den.a, y)?, self.num.a)?
+            .checked_div(denominator)
+            .map(Some)
     }
 }
 
@@ -199,6 +219,12 @@ fn symbol(z: u8) -> &'static str {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct LevelError(pub String);
 
+impl From<Overflow> for LevelError {
+    fn from(_: Overflow) -> Self {
+        LevelError("the exact amounts at this level grow beyond the exact range (about 9.2e18); give the level with fewer digits".into())
+    }
+}
+
 fn model(host: &Host, dopant: &Dopant, reaction: &Reaction) -> Result<Model, LevelError> {
     let zero = Q::from_integer(0);
     let source = reaction
@@ -206,46 +232,49 @@ fn model(host: &Host, dopant: &Dopant, reaction: &Reaction) -> Result<Model, Lev
         .iter()
         .find(|t| matches!(&t.entity, Entity::Compound(c) if c.formula == dopant.compound))
         .ok_or_else(|| LevelError("the reaction has no dopant compound".into()))?;
-    let per = Q::from_integer(1) / source.coefficient;
+    let per = source.coefficient.checked_recip()?;
     // Host part: (1 − m) formula units.
     let mut sites: Vec<Linear> = host
         .sublattices
         .iter()
-        .map(|s| Linear {
-            a: s.count,
-            b: -s.count,
+        .map(|s| {
+            Ok(Linear {
+                a: s.count,
+                b: s.count.checked_neg()?,
+            })
         })
-        .collect();
+        .collect::<Result<_, Overflow>>()?;
     let mut elements: Vec<(u8, Linear)> = Vec::new();
-    let mut add = |z: u8, a: Q, b: Q| match elements.iter_mut().find(|(e, _)| *e == z) {
-        Some((_, l)) => {
-            l.a += a;
-            l.b += b;
+    let mut add = |z: u8, a: Q, b: Q| -> Result<(), Overflow> {
+        match elements.iter_mut().find(|(e, _)| *e == z) {
+            Some((_, l)) => *l = l.plus(Linear { a, b })?,
+            None => elements.push((z, Linear { a, b })),
         }
-        None => elements.push((z, Linear { a, b })),
+        Ok(())
     };
     for s in &host.sublattices {
-        add(s.element, s.count, -s.count);
+        add(s.element, s.count, s.count.checked_neg()?)?;
     }
     let mut dopant_atoms = Linear::default();
     let mut defects: Vec<(Species, Q)> = Vec::new();
     for (right, term) in reaction.terms() {
-        let sign = if right { per } else { -per } * term.coefficient;
+        let sign =
+            if right { Ok(per) } else { per.checked_neg() }?.checked_mul(term.coefficient)?;
         let Entity::Species(s) = &term.entity else {
             continue;
         };
         if let Occupant::Atoms { formula, .. } = &s.occupant {
             for (z, count) in &formula.atoms {
-                add(*z, zero, sign * count);
+                add(*z, zero, number::mul(sign, *count)?)?;
                 if *z == dopant.element && !is_regular(s, host) {
-                    dopant_atoms.b += sign * count;
+                    dopant_atoms.b = number::add(dopant_atoms.b, number::mul(sign, *count)?)?;
                 }
             }
         }
         if let Some(Site::Lattice { element, label }) = &s.site {
             if let SiteLookup::Found(i) = host.lookup(*element, label.as_deref()) {
                 if let Some(slot) = sites.get_mut(i) {
-                    slot.b += sign;
+                    slot.b = number::add(slot.b, sign)?;
                 }
             }
         }
@@ -259,8 +288,8 @@ fn model(host: &Host, dopant: &Dopant, reaction: &Reaction) -> Result<Model, Lev
         .first()
         .ok_or_else(|| LevelError("the host has no sites".into()))?;
     let units = Linear {
-        a: sites[0].a / first.count,
-        b: sites[0].b / first.count,
+        a: sites[0].a.checked_div(first.count)?,
+        b: sites[0].b.checked_div(first.count)?,
     };
     let cation_elements: Vec<u8> = host
         .sublattices
@@ -272,8 +301,7 @@ fn model(host: &Host, dopant: &Dopant, reaction: &Reaction) -> Result<Model, Lev
     let mut cations = Linear::default();
     for (z, l) in &elements {
         if cation_elements.contains(z) {
-            cations.a += l.a;
-            cations.b += l.b;
+            cations = cations.plus(*l)?;
         }
     }
     let defects = defects
@@ -349,7 +377,8 @@ impl Model {
             if w.is_nan() {
                 return None;
             }
-            total += w * to_f64(l.at(m));
+            // A float context: M(m) in floating point.
+            total += w * (to_f64(l.a) + to_f64(l.b) * to_f64(m));
         }
         Some(total)
     }
@@ -377,12 +406,12 @@ pub fn mol_fraction(
             num: model.dopant,
             den: model.cations,
         }
-        .solve(*y)
+        .solve(*y)?
         .ok_or_else(out_of_range)?,
         Level::Exact(y, Unit::SitePercent) => model
             .compensating()
             .ok_or_else(|| LevelError("this mechanism has no compensating defect".into()))?
-            .solve(*y)
+            .solve(*y)?
             .ok_or_else(out_of_range)?,
         Level::Exact(y, Unit::PerCm3) => {
             return mol_fraction(host, dopant, reaction, &Level::PerCm3(to_f64(*y)), volume);
@@ -447,7 +476,7 @@ pub fn composition(
     let undefined = || LevelError("the composition is undefined at this level".into());
     let mut formula: Vec<(u8, Q)> = Vec::new();
     for (z, l) in &model.elements {
-        let count = model.per_unit(*l).at(m).ok_or_else(undefined)?;
+        let count = model.per_unit(*l).at(m)?.ok_or_else(undefined)?;
         if count != Q::from_integer(0) {
             formula.push((*z, count));
         }
@@ -457,17 +486,17 @@ pub fn composition(
         num: model.dopant,
         den: model.cations,
     }
-    .at(m)
+    .at(m)?
     .ok_or_else(undefined)?;
     let mut defects = Vec::new();
     for d in &model.defects {
         defects.push(DefectFraction {
             species: d.text.clone(),
-            fraction: d.fraction(model.units).at(m).ok_or_else(undefined)?,
+            fraction: d.fraction(model.units).at(m)?.ok_or_else(undefined)?,
             basis: d.basis.clone(),
         });
     }
-    let per_unit_dopant = model.per_unit(model.dopant).at(m).ok_or_else(undefined)?;
+    let per_unit_dopant = model.per_unit(model.dopant).at(m)?.ok_or_else(undefined)?;
     let per_cm3 = match volume {
         None => None,
         Some(Volume::Cell { angstrom, units }) => {
@@ -475,7 +504,7 @@ pub fn composition(
         }
         Some(Volume::Density(rho)) => {
             let per_unit_mass =
-                model.molar_mass(m).ok_or_else(no_weight)? / to_f64(model.units.at(m));
+                model.molar_mass(m).ok_or_else(no_weight)? / to_f64(model.units.at(m)?);
             Some(to_f64(per_unit_dopant) * rho * AVOGADRO / per_unit_mass)
         }
     };

@@ -190,9 +190,9 @@ fn guess(host: &Host) -> Structure {
     match cations.as_slice() {
         [m] => {
             let sub = &host.sublattices[*m];
-            let ratio = x.count / sub.count;
+            let ratio = x.count.checked_div(sub.count).ok();
             let z = sub.element;
-            let r = |n: i64, d: i64| ratio == Q::new(n, d);
+            let r = |n: i64, d: i64| ratio == Some(Q::new(n, d));
             if oxide_like && r(1, 1) {
                 if is(z, &["Zn", "Be"]) || (!oxide && is(z, &["Zn", "Cd", "Hg", "Be"])) {
                     assumed("wurtzite or zinc blende", &[4], None, None)
@@ -289,10 +289,12 @@ fn guess(host: &Host) -> Structure {
         }
         [a, b] => {
             let (sa, sb) = (&host.sublattices[*a], &host.sublattices[*b]);
-            let per = |s: &crate::host::Sublattice| s.count / sa.count;
-            let counts = (per(sa), per(sb), x.count / sa.count);
-            let q = |n: i64| Q::from_integer(n);
-            let half = |n: i64| Q::new(n, 2);
+            // Counts per A ion; a ratio beyond the exact range matches no
+            // known structure.
+            let per = |s: &crate::host::Sublattice| s.count.checked_div(sa.count).ok();
+            let counts = (per(sa), per(sb), x.count.checked_div(sa.count).ok());
+            let q = |n: i64| Some(Q::from_integer(n));
+            let half = |n: i64| Some(Q::new(n, 2));
             if counts == (q(1), q(1), q(3)) {
                 perovskite_or_ilmenite(host, *a, *b, x.element, x_charge, &cations)
             } else if counts == (q(1), q(2), q(4)) {
@@ -318,7 +320,7 @@ fn guess(host: &Host) -> Structure {
                 }
             } else if counts == (q(1), q(1), half(7)) {
                 assumed("pyrochlore", &[8, 6], Some(8), None)
-            } else if counts == (q(1), Q::new(5, 3), q(4)) {
+            } else if counts == (q(1), Some(Q::new(5, 3)), q(4)) {
                 assumed(
                     "garnet",
                     &[8, 6],

@@ -162,7 +162,7 @@ fn the_associate_charge_is_kept_as_declared() {
         }) => {
             assert_eq!(a.charge, Some(0));
             assert_eq!(a.parts.len(), 2);
-            assert_eq!(a.parts_charge(), Q::from_integer(0));
+            assert_eq!(a.parts_charge(), Ok(Q::from_integer(0)));
         }
         other => panic!("{other:?}"),
     }
@@ -252,8 +252,8 @@ fn formulas_parse_with_groups_and_decimals() {
     let f = parse_formula("Ba(OH)2", 0..7).expect("parses");
     let ba = crate::base::elements::by_symbol("Ba").unwrap().z;
     let h = crate::base::elements::by_symbol("H").unwrap().z;
-    assert_eq!(f.count(ba), Q::from_integer(1));
-    assert_eq!(f.count(h), Q::from_integer(2));
+    assert_eq!(f.count(ba), Ok(Q::from_integer(1)));
+    assert_eq!(f.count(h), Ok(Q::from_integer(2)));
     assert!(parse_formula("ZrO2x", 0..5).is_err());
     assert!(parse_formula("Zz2", 0..3).is_err());
 }
