@@ -1,0 +1,146 @@
+//! The layering rules of DEVELOPERS.md, checked on the source tree and the
+//! manifest: the domain stages do no I/O and no presentation, and the core
+//! library depends on no front-end crate.
+
+use crate::support::repo;
+use std::fs;
+use std::path::Path;
+
+/// Stages whose results are plain data: no files, no terminals, no colour.
+const PURE_STAGES: &[&str] = &[
+    "base",
+    "notation",
+    "host.rs",
+    "check",
+    "balance",
+    "generate",
+    "model",
+    "solve",
+    "fit",
+    "typeset.rs",
+];
+
+/// What a pure stage must not mention, and why it would be wrong there.
+const IMPURE: &[(&str, &str)] = &[
+    (
+        "std::io",
+        "I/O belongs to file/ (reading sources) and report/ (writing)",
+    ),
+    ("std::fs", "files are opened by file/ and the front-ends"),
+    ("println!", "output is written by report/"),
+    ("eprintln!", "output is written by report/"),
+    ("print!(", "output is written by report/"),
+    ("Palette", "colour is decided at print time, in report/"),
+    ("anstyle", "colour is decided at print time, in report/"),
+];
+
+fn rust_files(dir: &Path, out: &mut Vec<std::path::PathBuf>) {
+    if dir.is_file() {
+        out.push(dir.to_path_buf());
+        return;
+    }
+    for entry in fs::read_dir(dir).expect("source folder") {
+        let path = entry.expect("entry").path();
+        if path.is_dir() {
+            rust_files(&path, out);
+        } else if path.extension().is_some_and(|e| e == "rs") {
+            out.push(path);
+        }
+    }
+}
+
+/// Code of a file without its `#[cfg(test)]` tail and without comments.
+fn code_of(text: &str) -> String {
+    let body = text.split("#[cfg(test)]").next().unwrap_or("");
+    body.lines()
+        .filter(|l| !l.trim_start().starts_with("//"))
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+#[test]
+fn domain_stages_do_no_io_and_no_presentation() {
+    let mut found = Vec::new();
+    for stage in PURE_STAGES {
+        let mut files = Vec::new();
+        rust_files(Path::new(&repo(&format!("src/{stage}"))), &mut files);
+        assert!(!files.is_empty(), "src/{stage} has no Rust files");
+        for file in files {
+            if file.file_name().is_some_and(|n| n == "tests.rs") {
+                continue;
+            }
+            let code = code_of(&fs::read_to_string(&file).expect("source"));
+            for (needle, why) in IMPURE {
+                if code.contains(needle) {
+                    found.push(format!("{}: `{needle}` ({why})", file.display()));
+                }
+            }
+        }
+    }
+    assert!(found.is_empty(), "{}", found.join("\n"));
+}
+
+/// Crates the core may use; every other dependency is optional and enabled
+/// only by the `cli` feature, so `--no-default-features` embeds cleanly.
+const CORE_CRATES: &[&str] = &[
+    "anstyle",
+    "csv",
+    "nom",
+    "num-bigint",
+    "num-integer",
+    "num-rational",
+    "num-traits",
+    "serde",
+    "serde_json",
+    "toml",
+];
+
+#[test]
+fn the_core_depends_on_no_front_end_crate() {
+    let manifest: toml::Table = fs::read_to_string(repo("Cargo.toml"))
+        .expect("Cargo.toml")
+        .parse()
+        .expect("Cargo.toml parses");
+    let deps = manifest["dependencies"].as_table().expect("[dependencies]");
+    let features = manifest["features"].as_table().expect("[features]");
+    let enabled_by = |name: &str| -> Vec<String> {
+        features
+            .iter()
+            .filter(|(_, list)| {
+                list.as_array()
+                    .expect("feature list")
+                    .iter()
+                    .any(|v| v.as_str() == Some(&format!("dep:{name}")))
+            })
+            .map(|(feature, _)| feature.clone())
+            .collect()
+    };
+    let default: Vec<&str> = features["default"]
+        .as_array()
+        .expect("default features")
+        .iter()
+        .filter_map(|v| v.as_str())
+        .collect();
+    assert_eq!(
+        default,
+        ["cli"],
+        "the default feature set is the front-ends"
+    );
+    for (name, spec) in deps {
+        let optional = spec
+            .as_table()
+            .and_then(|t| t.get("optional"))
+            .and_then(toml::Value::as_bool)
+            .unwrap_or(false);
+        if CORE_CRATES.contains(&name.as_str()) {
+            continue;
+        }
+        assert!(optional, "{name} is a front-end crate but not optional");
+        let by = enabled_by(name);
+        assert_eq!(
+            by,
+            ["cli"],
+            "{name} is enabled by {by:?}, not by `cli` alone"
+        );
+    }
+}
