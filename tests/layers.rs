@@ -144,3 +144,39 @@ fn the_core_depends_on_no_front_end_crate() {
         );
     }
 }
+
+/// Diagnostic codes are stable: a code, once given, keeps its name (its
+/// meaning) for ever; new codes are only added. `tests/fixtures/codes.txt`
+/// lists every code given so far with its rule name; append a line for a
+/// new code, never change one.
+#[test]
+fn diagnostic_codes_keep_their_meaning() {
+    let explained = crate::support::lacuna(&["explain"], None);
+    assert_eq!(explained.code, 0, "{}", explained.stderr);
+    let current: std::collections::BTreeMap<&str, &str> = explained
+        .stdout
+        .lines()
+        .filter_map(|l| {
+            let mut words = l.split_whitespace();
+            let code = words.next()?;
+            let _severity = words.next()?;
+            Some((code, words.next()?))
+        })
+        .collect();
+    let given = fs::read_to_string(repo("tests/fixtures/codes.txt")).expect("codes.txt");
+    let mut listed = 0;
+    for line in given.lines().filter(|l| !l.trim().is_empty()) {
+        let (code, name) = line.split_once(' ').expect("`CODE name` lines");
+        assert_eq!(
+            current.get(code),
+            Some(&name),
+            "{code} was `{name}`; a code keeps its meaning (add a new code instead)"
+        );
+        listed += 1;
+    }
+    assert_eq!(
+        listed,
+        current.len(),
+        "`lacuna explain` lists codes that tests/fixtures/codes.txt lacks: append them"
+    );
+}
