@@ -180,3 +180,39 @@ fn diagnostic_codes_keep_their_meaning() {
         "`lacuna explain` lists codes that tests/fixtures/codes.txt lacks: append them"
     );
 }
+
+/// Every test DEVELOPERS.md names as the holder of an invariant exists, so
+/// the code map cannot promise a check that is gone.
+#[test]
+fn the_tests_the_code_map_names_exist() {
+    let map = fs::read_to_string(repo("DEVELOPERS.md")).expect("DEVELOPERS.md");
+    let mut sources = String::new();
+    for folder in ["src", "tests"] {
+        let mut files = Vec::new();
+        rust_files(Path::new(&repo(folder)), &mut files);
+        for file in files {
+            sources.push_str(&fs::read_to_string(file).expect("source"));
+        }
+    }
+    let mut named = 0;
+    for quoted in map.split('`').skip(1).step_by(2) {
+        // Test names are snake_case with at least three words; a `module::`
+        // prefix names the file they are in.
+        let name = quoted.rsplit("::").next().unwrap_or(quoted);
+        let name = name.trim_end_matches('*');
+        let looks_like_test = !quoted.starts_with("clippy::")
+            && name.matches('_').count() >= 2
+            && name
+                .chars()
+                .all(|c| c.is_ascii_lowercase() || c == '_' || c.is_ascii_digit());
+        if !looks_like_test {
+            continue;
+        }
+        named += 1;
+        assert!(
+            sources.contains(&format!("fn {name}")),
+            "DEVELOPERS.md names the test `{quoted}`, which no longer exists"
+        );
+    }
+    assert!(named >= 10, "DEVELOPERS.md names only {named} tests");
+}
