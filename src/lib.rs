@@ -35,6 +35,18 @@
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 //!
+//! The example of README.md (a test keeps the two the same):
+//!
+//! ```
+//! fn main() -> Result<(), Box<dyn std::error::Error>> {
+//!     let zirconia = lacuna::host("ZrO2")?;
+//!     let reduction = "O_O -> V_O.. + 2e' + 1/2 O2(g)";
+//!     let checked = lacuna::check_text("notebook", reduction, Some(zirconia))?;
+//!     assert!(checked.ok());
+//!     Ok(())
+//! }
+//! ```
+//!
 //! # The pipeline, one folder per stage
 //!
 //! `base` holds exact numbers, diagnostics and element data; `notation`
