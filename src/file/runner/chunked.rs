@@ -3,7 +3,7 @@
 //! other line prepared on any core against the host in force at it, and
 //! the chunk reported in order while the next one is prepared.
 
-use super::Checker;
+use super::Runner;
 use super::line::{Prepared, follow, line_content, prepare_line};
 use super::stream::{Leftover, SourceState};
 use crate::file::reader::{HostTracker, Line, classify, read_reaction};
@@ -232,7 +232,7 @@ struct Helper {
     garbage: Vec<Leftover>,
 }
 
-impl Checker<'_> {
+impl Runner<'_> {
     /// Checks a reaction file like `check_reader`, with the work that needs
     /// no cross-line state (parsing, the three balances, hashing for the
     /// cross-line rules) spread over all cores a chunk of lines at a time.
@@ -371,7 +371,7 @@ mod tests {
             events: Vec::new(),
             keep_passing: true,
         };
-        let mut checker = Checker::new(None, &mut recording);
+        let mut checker = Runner::new(None, &mut recording);
         if parallel {
             checker
                 .check_reader_parallel("f.kvr", bytes)

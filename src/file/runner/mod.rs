@@ -26,16 +26,16 @@ use std::io;
 use std::sync::Arc;
 
 /// Checks reaction sources one after another, keeping per-source state.
-pub struct Checker<'s> {
+pub struct Runner<'s> {
     default_host: Option<Arc<Host>>,
     levels: Levels,
     sink: &'s mut dyn Sink,
     pub summary: Summary,
 }
 
-impl<'s> Checker<'s> {
+impl<'s> Runner<'s> {
     pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
-        Checker {
+        Runner {
             default_host: default_host.map(Arc::new),
             levels: Levels::default(),
             sink,

@@ -3,7 +3,7 @@
 //! work that depends on the lines before it (the cross-line rules, rule
 //! levels, totals, the sink), which the chunked run shares.
 
-use super::Checker;
+use super::Runner;
 use super::line::{
     CheckedReaction, Prepared, PreparedReaction, follow, line_content, prepare_line,
 };
@@ -38,7 +38,7 @@ impl SourceState {
     }
 }
 
-impl Checker<'_> {
+impl Runner<'_> {
     /// Checks a reaction file (or stdin) read line by line; each line is
     /// reported as soon as it is read, so interactive input streams.
     pub fn check_reader(&mut self, name: &str, mut reader: impl BufRead) -> io::Result<()> {

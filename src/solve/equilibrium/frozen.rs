@@ -7,7 +7,7 @@ use super::sweep::{Point, po2_sweep, predict, remember};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::Q;
 use crate::model::Model;
-use crate::model::network::{self, Level, Network, Row};
+use crate::model::network::{self, Constraint, Network, Row};
 
 /// The model with ionic defects frozen: only electronic equilibria run, and
 /// every ionic quantity they conserve is held at its equilibrated value.
@@ -239,8 +239,8 @@ pub fn frozen_sweep(
             .iter()
             .map(|l| match l {
                 // The net charge of what stays in the balance, as it was.
-                Level::Charge => net_charge,
-                Level::Total(j) => {
+                Constraint::Charge => net_charge,
+                Constraint::Total(j) => {
                     let weights = &frozen.frozen[*j];
                     let max = weights
                         .iter()

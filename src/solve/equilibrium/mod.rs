@@ -15,7 +15,7 @@ mod solver;
 mod sweep;
 
 pub use frozen::{Frozen, frozen_network, frozen_sweep};
-pub use solver::{Outcome, System, TOLERANCE, Work};
+pub use solver::{Convergence, System, TOLERANCE, Work};
 pub use sweep::{Point, inverse_grid, log_grid, po2_sweep, temperature_sweep};
 
 #[cfg(test)]

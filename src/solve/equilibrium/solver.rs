@@ -14,7 +14,7 @@
 //! of the reduced function (a Schur complement of the Hessian of Φ).
 
 use crate::base::number::Q;
-use crate::model::network::{Level, Network};
+use crate::model::network::{Constraint, Network};
 
 /// Relative electroneutrality (and total) residual a point must reach.
 pub const TOLERANCE: f64 = 1e-12;
@@ -47,7 +47,7 @@ pub(super) fn q_to_f64(q: Q) -> f64 {
 #[derive(Debug, Clone)]
 pub struct System {
     pub species: usize,
-    pub levels: Vec<Level>,
+    pub levels: Vec<Constraint>,
     /// w[l * species + s]
     w: Vec<f64>,
     /// ln |w| (unused where w = 0).
@@ -67,9 +67,9 @@ pub struct Work {
     pub evaluations: u32,
 }
 
-/// Outcome of one solve.
+/// Whether one solve converged, and its residuals.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Outcome {
+pub struct Convergence {
     pub converged: bool,
     /// Relative electroneutrality residual |Σ z c| / Σ |z| c (0 when nothing is charged).
     pub charge_residual: f64,
@@ -89,7 +89,7 @@ impl System {
             .map(|x| if *x != 0.0 { x.abs().ln() } else { 0.0 })
             .collect();
         let mut charge_slope_bound = 0.0;
-        if network.levels.first() == Some(&Level::Charge) {
+        if network.levels.first() == Some(&Constraint::Charge) {
             let row = &w[..species];
             let min_pos = row
                 .iter()
@@ -115,7 +115,7 @@ impl System {
     /// solutions). Without a charge level it is returned unchanged.
     pub fn with_charge_row(&self, row: &[f64]) -> System {
         let mut copy = self.clone();
-        if self.levels.first() == Some(&Level::Charge) && row.len() == self.species {
+        if self.levels.first() == Some(&Constraint::Charge) && row.len() == self.species {
             for (s, &z) in row.iter().enumerate() {
                 copy.w[s] = z;
                 copy.ln_w[s] = if z != 0.0 { z.abs().ln() } else { 0.0 };
@@ -195,7 +195,7 @@ impl System {
     /// electroneutrality): h = ln(P + Q⁻) − ln(N + Q⁺).
     fn residual(&self, level: usize, targets: &[f64], work: &mut Work) -> (f64, f64) {
         match self.levels[level] {
-            Level::Charge => {
+            Constraint::Charge => {
                 let (lp, dp) = self.log_sum(level, true, &work.e);
                 let (ln, dn) = self.log_sum(level, false, &work.e);
                 let q = targets.get(level).copied().unwrap_or(0.0);
@@ -211,7 +211,7 @@ impl System {
                     (shifted - ln, dp * (lp - shifted).exp() + dn)
                 }
             }
-            Level::Total(_) => {
+            Constraint::Total(_) => {
                 let (ls, _) = self.log_sum(level, true, &work.e);
                 let h = ls - targets.get(level).copied().unwrap_or(0.0);
                 (h, self.reduced_slope(level, ls, work))
@@ -307,7 +307,7 @@ impl System {
         let (mut h, mut d) = self.residual(level, ln_targets, work);
         // The slope bound brackets the root at once, but only for plain
         // electroneutrality (no offset charge).
-        let is_charge = self.levels[level] == Level::Charge
+        let is_charge = self.levels[level] == Constraint::Charge
             && ln_targets.get(level).copied().unwrap_or(0.0) == 0.0
             && self.charge_slope_bound.is_finite()
             && self.charge_slope_bound > 0.0;
@@ -379,7 +379,7 @@ impl System {
         y: &mut [f64],
         ln_c: &mut Vec<f64>,
         work: &mut Work,
-    ) -> Outcome {
+    ) -> Convergence {
         work.evaluations = 0;
         let ok = if self.levels.is_empty() {
             self.exponents(a, y, work);
@@ -403,7 +403,7 @@ impl System {
         y: &mut [f64],
         ln_c: &mut Vec<f64>,
         work: &mut Work,
-    ) -> Outcome {
+    ) -> Convergence {
         work.evaluations = 0;
         work.start.clear();
         work.start.extend_from_slice(y);
@@ -435,7 +435,7 @@ impl System {
         // else is left to the searches.
         for (l, level) in self.levels.iter().enumerate() {
             let row = &self.w[l * self.species..(l + 1) * self.species];
-            if matches!(level, Level::Total(_)) && row.iter().any(|w| *w < 0.0) {
+            if matches!(level, Constraint::Total(_)) && row.iter().any(|w| *w < 0.0) {
                 return false;
             }
         }
@@ -457,8 +457,8 @@ impl System {
                     scale += w.abs() * c;
                 }
                 let target = match level {
-                    Level::Charge => ln_targets.get(l).copied().unwrap_or(0.0),
-                    Level::Total(_) => ln_targets.get(l).map_or(1.0, |t| t.exp()),
+                    Constraint::Charge => ln_targets.get(l).copied().unwrap_or(0.0),
+                    Constraint::Total(_) => ln_targets.get(l).map_or(1.0, |t| t.exp()),
                 };
                 g[l] = sum - target;
                 let relative = g[l].abs() / (scale + target.abs());
@@ -533,7 +533,7 @@ impl System {
         ln_c: &mut Vec<f64>,
         work: &mut Work,
         ok: bool,
-    ) -> Outcome {
+    ) -> Convergence {
         self.exponents(a, y, work);
         ln_c.clear();
         ln_c.extend_from_slice(&work.e);
@@ -551,7 +551,7 @@ impl System {
         let mut total_residual = 0.0f64;
         for (l, level) in self.levels.iter().enumerate() {
             match level {
-                Level::Charge => {
+                Constraint::Charge => {
                     let q = ln_targets.get(l).copied().unwrap_or(0.0);
                     let sums = direct
                         .then(|| self.signed_sums(l, &work.c))
@@ -574,7 +574,7 @@ impl System {
                         }
                     };
                 }
-                Level::Total(_) => {
+                Constraint::Total(_) => {
                     let target = ln_targets.get(l).copied().unwrap_or(0.0);
                     let sum = direct
                         .then(|| self.signed_sums(l, &work.c).0)
@@ -592,7 +592,7 @@ impl System {
         }
         let finite = ln_c.iter().all(|x| x.is_finite());
         let converged = ok && finite && charge_residual <= TOLERANCE && total_residual <= TOLERANCE;
-        Outcome {
+        Convergence {
             converged,
             charge_residual: if charge_residual.is_finite() {
                 charge_residual

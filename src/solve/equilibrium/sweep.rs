@@ -5,7 +5,7 @@
 use super::solver::{System, Work, q_to_f64};
 use crate::base::diagnostic::Diagnostic;
 use crate::model::Model;
-use crate::model::network::{Level, Network};
+use crate::model::network::{Constraint, Network};
 
 /// One solved state.
 #[derive(Debug, Clone, PartialEq)]
@@ -70,8 +70,8 @@ fn model_targets(model: &Model, system: &System) -> Vec<f64> {
         .levels
         .iter()
         .map(|l| match l {
-            Level::Charge => 0.0,
-            Level::Total(t) => model.totals.get(*t).map_or(0.0, |t| t.amount.ln()),
+            Constraint::Charge => 0.0,
+            Constraint::Total(t) => model.totals.get(*t).map_or(0.0, |t| t.amount.ln()),
         })
         .collect()
 }
