@@ -372,32 +372,8 @@ impl Model {
             .filter(|d| !d.is_error())
             .cloned()
             .collect();
-        let locate = |line: u32, d: Diagnostic| d.locate(line, doc.line_text(line));
-        let host = match doc.hosts.as_slice() {
-            [] => {
-                errors.push(
-                    Diagnostic::new(Code::NoHost, 0..0, "the model has no host")
-                        .with_help("add a `host ZrO2` line at the top, or pass --host")
-                        .locate(1, doc.line_text(1)),
-                );
-                return Err(errors);
-            }
-            [(host, _)] => host.clone(),
-            [.., (host, line)] => {
-                let file_hosts: Vec<_> = doc.hosts.iter().filter(|(_, l)| *l > 0).collect();
-                if file_hosts.len() > 1 {
-                    errors.push(locate(
-                        *line,
-                        Diagnostic::new(
-                            Code::ModelDuplicate,
-                            0..doc.line_text(*line).len(),
-                            "a model has one host; this is a second `host` line",
-                        )
-                        .with_help("split the file into one model per host"),
-                    ));
-                }
-                host.clone()
-            }
+        let Some(host) = model_host(doc, &mut errors) else {
+            return Err(errors);
         };
         let temperature = overrides.temperature.or(doc.temperature.map(|(t, _)| t));
         let po2_range = overrides
@@ -407,296 +383,14 @@ impl Model {
 
         errors.extend(label_problems(doc));
 
-        // Equilibria: reactions with data.
-        let mut factor_species: Vec<ModelSpecies> = Vec::new();
-        let mut gases: Vec<Gas> = Vec::new();
-        let mut equilibria: Vec<Equilibrium> = Vec::new();
-        let mut reference_only = Vec::new();
-        for r in &doc.reactions {
-            let data: Vec<&DataLine> = match &r.label {
-                Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
-                None => Vec::new(),
-            };
-            // A K without `at` holds at the file's temperature, never at a
-            // temperature given on the command line for this run.
-            let file_temperature = doc.temperature.map(|(t, _)| t);
-            let thermo = match resolve_thermo(&data, file_temperature, r.line) {
-                Ok(t) => t,
-                Err((line, d)) => {
-                    errors.push(locate(line, d));
-                    continue;
-                }
-            };
-            let name = r
-                .label
-                .clone()
-                .unwrap_or_else(|| crate::notation::render_reaction(&r.reaction, Style::Unicode));
-            let (thermo, data_line) = match thermo {
-                Some((thermo, line)) => (Some(thermo), line),
-                None if overrides.slopes_only => (None, r.line),
-                None => {
-                    reference_only.push(name.clone());
-                    notes.push(locate(
-                    r.line,
-                    Diagnostic::new(
-                        Code::NoThermoData,
-                        r.reaction.span.clone(),
-                        format!("`{name}` has no K or dH/dS: shown for reference, not part of the equilibrium"),
-                    )
-                    .with_help(if r.label.is_some() {
-                        "add `K label = ...` or `dH`/`dS` lines to make it an equilibrium"
-                    } else {
-                        "label it (`red: ...`) and add `K red = ...` to make it an equilibrium"
-                    }),
-                ));
-                    continue;
-                }
-            };
-            if !r.ok {
-                // The balance diagnostics are already in `errors`.
-                continue;
-            }
-            let law = match mass_action_law(&r.reaction, r.label.as_deref()) {
-                Ok(l) => l,
-                Err(_) => {
-                    errors.push(locate(
-                        r.line,
-                        Diagnostic::new(
-                            Code::Number,
-                            r.reaction.span.clone(),
-                            "the exponents of this law grew beyond the exact range",
-                        )
-                        .with_help("scale the coefficients down"),
-                    ));
-                    continue;
-                }
-            };
-            let mut row = Row::default();
-            let mut identity_change: BTreeMap<String, Q> = BTreeMap::new();
-            let too_large = || {
-                locate(
-                    r.line,
-                    model_overflow(r.reaction.span.clone(), "the species of this reaction"),
-                )
-            };
-            let mut overflow = false;
-            let mut electronic = true;
-            for f in &law.factors {
-                match f.kind {
-                    FactorKind::Gas => {
-                        electronic = false;
-                        let index = match gases.iter().position(|g| g.key == f.key) {
-                            Some(i) => i,
-                            None => {
-                                gases.push(Gas {
-                                    key: f.key.clone(),
-                                    ascii: f.ascii.clone(),
-                                    unicode: f.unicode.clone(),
-                                    latex: f.latex.clone(),
-                                    pressure: None,
-                                });
-                                gases.len() - 1
-                            }
-                        };
-                        row.gases.push((index, f.exponent));
-                    }
-                    FactorKind::Phase => electronic = false,
-                    FactorKind::Lattice => match frozen_identity(&f.entity) {
-                        Ok(Some(id)) => {
-                            let slot = identity_change.entry(id).or_default();
-                            overflow |= number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
-                        }
-                        Ok(None) => {}
-                        Err(_) => overflow = true,
-                    },
-                    _ => {
-                        let index = match factor_species.iter().position(|s| s.key == f.key) {
-                            Some(i) => i,
-                            None => {
-                                let Ok(species) = model_species(f, &host) else {
-                                    overflow = true;
-                                    continue;
-                                };
-                                factor_species.push(species);
-                                factor_species.len() - 1
-                            }
-                        };
-                        row.species.push((index, f.exponent));
-                        match frozen_identity(&f.entity) {
-                            Ok(Some(id)) => {
-                                let slot = identity_change.entry(id).or_default();
-                                overflow |=
-                                    number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
-                            }
-                            Ok(None) => {}
-                            Err(_) => overflow = true,
-                        }
-                    }
-                }
-            }
-            if overflow {
-                errors.push(too_large());
-                continue;
-            }
-            if identity_change.values().any(|v| *v != Q::from_integer(0)) {
-                electronic = false;
-            }
-            equilibria.push(Equilibrium {
-                label: name,
-                law,
-                thermo,
-                row,
-                electronic,
-                line: r.line,
-                data_line,
-            });
-        }
-
-        // Gas pressures: O2 is swept, the others need a `pressure` line.
-        for p in &doc.pressures {
-            if p.key == "gas O2" {
-                errors.push(locate(
-                    p.line,
-                    Diagnostic::new(Code::GasPressure, p.span.clone(), "pO2 is swept, not fixed")
-                        .with_help("set its range with `po2 1e-30 to 1e5 bar`"),
-                ));
-                continue;
-            }
-            match gases.iter_mut().find(|g| g.key == p.key) {
-                Some(g) if g.pressure.is_none() => g.pressure = Some(p.bar),
-                Some(_) => errors.push(locate(
-                    p.line,
-                    Diagnostic::new(
-                        Code::ModelDuplicate,
-                        p.span.clone(),
-                        format!("the pressure of {} is already given", p.text),
-                    )
-                    .with_help("keep one `pressure` line per gas"),
-                )),
-                None => notes.push(locate(
-                    p.line,
-                    Diagnostic::new(
-                        Code::NoThermoData,
-                        p.span.clone(),
-                        format!(
-                            "{} takes part in no equilibrium with data; its pressure is not used",
-                            p.text
-                        ),
-                    )
-                    .with_help("remove the line, or give data for a reaction with this gas"),
-                )),
-            }
-        }
-        for g in &gases {
-            if g.key != "gas O2" && g.pressure.is_none() {
-                let line = equilibria
-                    .iter()
-                    .find(|e| e.law.factors.iter().any(|f| f.key == g.key))
-                    .map_or(0, |e| e.line);
-                let formula = g.ascii.trim_start_matches('p');
-                errors.push(locate(
-                    line,
-                    Diagnostic::new(
-                        Code::GasPressure,
-                        0..doc.line_text(line).len(),
-                        format!("{} is in an equilibrium but has no pressure", g.unicode),
-                    )
-                    .with_help(format!("add `pressure {formula} = 0.03 bar` (your value)")),
-                ));
-            }
-        }
-
-        // Fixed totals.
-        let mut totals: Vec<Total> = Vec::new();
-        for fix in &doc.fixes {
-            let identity = content_key(&fix.subject);
-            let mut present = factor_species
-                .iter()
-                .any(|s| s.content.iter().any(|(k, _)| *k == identity));
-            let exact_key = law::species_key(&fix.subject);
-            let written_charge = fix.subject.marks != crate::notation::MarkStyle::Unmarked;
-            if written_charge && !factor_species.iter().any(|s| s.key == exact_key) {
-                // A dopant that takes part in no reaction: a fixed charged species.
-                if let Some(f) = law::factor_of(&Entity::Species(fix.subject.clone())) {
-                    if f.kind == FactorKind::Defect {
-                        match model_species(&f, &host) {
-                            Ok(species) => {
-                                factor_species.push(species);
-                                present = true;
-                            }
-                            Err(_) => {
-                                errors.push(locate(
-                                    fix.line,
-                                    model_overflow(0..0, "the species of this line"),
-                                ));
-                                continue;
-                            }
-                        }
-                    }
-                }
-            }
-            if !present {
-                errors.push(locate(
-                    fix.line,
-                    Diagnostic::new(
-                        Code::FixedTotal,
-                        fix.subject_span.clone(),
-                        "this species is in no equilibrium and has no charge written",
-                    )
-                    .with_help("write its charge (e.g. `Y_Zr'`) to add it as a fixed defect"),
-                ));
-                continue;
-            }
-            if totals.iter().any(|t| t.identity == identity) {
-                errors.push(locate(
-                    fix.line,
-                    Diagnostic::new(
-                        Code::ModelDuplicate,
-                        fix.subject_span.clone(),
-                        "this total is already fixed",
-                    )
-                    .with_help("keep one `fix` line per dopant"),
-                ));
-                continue;
-            }
-            match amount_per_formula_unit(fix, &host) {
-                Ok((amount, description)) => {
-                    let subject_unicode =
-                        crate::notation::render_species(&fix.subject, Style::Unicode);
-                    let subject_ascii = crate::notation::render_species(&fix.subject, Style::Ascii);
-                    totals.push(Total {
-                        subject_unicode,
-                        subject_ascii,
-                        identity,
-                        weights: Vec::new(),
-                        amount,
-                        description,
-                        line: fix.line,
-                    });
-                }
-                Err(d) => errors.push(locate(fix.line, d)),
-            }
-        }
-        for t in &mut totals {
-            t.weights = factor_species
-                .iter()
-                .map(|s| {
-                    number::sum(
-                        s.content
-                            .iter()
-                            .filter(|(k, _)| *k == t.identity)
-                            .map(|(_, n)| *n),
-                    )
-                })
-                .collect::<Result<_, _>>()
-                .unwrap_or_else(|_| {
-                    errors.push(locate(
-                        t.line,
-                        model_overflow(0..0, "the amounts of this total"),
-                    ));
-                    Vec::new()
-                });
-        }
+        let Reactions {
+            mut factor_species,
+            mut gases,
+            equilibria,
+            reference_only,
+        } = equilibria_of(doc, &host, overrides, &mut errors, &mut notes);
+        gas_pressures(doc, &mut gases, &equilibria, &mut errors, &mut notes);
+        let totals = fixed_totals(doc, &host, &mut factor_species, &mut errors);
 
         if !errors.is_empty() {
             return Err(errors);
@@ -711,27 +405,7 @@ impl Model {
             .locate(1, doc.line_text(1))]);
         }
 
-        let rows: Vec<Row> = equilibria.iter().map(|e| e.row.clone()).collect();
-        let charges: Vec<i32> = factor_species.iter().map(|s| s.charge).collect();
-        let total_weights: Vec<Vec<Q>> = totals.iter().map(|t| t.weights.clone()).collect();
-        let network = match network::build(
-            factor_species.len(),
-            gases.len(),
-            &rows,
-            &charges,
-            &total_weights,
-        ) {
-            Ok(n) => n,
-            Err(e) => {
-                return Err(vec![network_diagnostic(
-                    e,
-                    doc,
-                    &equilibria,
-                    &totals,
-                    &factor_species,
-                )]);
-            }
-        };
+        let network = model_network(doc, &equilibria, &totals, &factor_species, gases.len())?;
         Ok(Model {
             source: doc.source.clone(),
             host,
@@ -747,6 +421,394 @@ impl Model {
             lines: doc.lines.clone(),
         })
     }
+}
+
+/// The model's host: the last one in force (a second `host` line of the
+/// file is an error); `None`, with the error, when there is none.
+fn model_host(doc: &Document, errors: &mut Vec<Diagnostic>) -> Option<Host> {
+    let locate = |line: u32, d: Diagnostic| d.locate(line, doc.line_text(line));
+    match doc.hosts.as_slice() {
+        [] => {
+            errors.push(
+                Diagnostic::new(Code::NoHost, 0..0, "the model has no host")
+                    .with_help("add a `host ZrO2` line at the top, or pass --host")
+                    .locate(1, doc.line_text(1)),
+            );
+            None
+        }
+        [(host, _)] => Some(host.clone()),
+        [.., (host, line)] => {
+            let file_hosts: Vec<_> = doc.hosts.iter().filter(|(_, l)| *l > 0).collect();
+            if file_hosts.len() > 1 {
+                errors.push(locate(
+                    *line,
+                    Diagnostic::new(
+                        Code::ModelDuplicate,
+                        0..doc.line_text(*line).len(),
+                        "a model has one host; this is a second `host` line",
+                    )
+                    .with_help("split the file into one model per host"),
+                ));
+            }
+            Some(host.clone())
+        }
+    }
+}
+
+/// What the reactions give: the species and gases they name, the
+/// equilibria (reactions with data) and the reactions shown for reference.
+struct Reactions {
+    factor_species: Vec<ModelSpecies>,
+    gases: Vec<Gas>,
+    equilibria: Vec<Equilibrium>,
+    reference_only: Vec<String>,
+}
+
+/// Equilibria: reactions with data.
+fn equilibria_of(
+    doc: &Document,
+    host: &Host,
+    overrides: Overrides,
+    errors: &mut Vec<Diagnostic>,
+    notes: &mut Vec<Diagnostic>,
+) -> Reactions {
+    let locate = |line: u32, d: Diagnostic| d.locate(line, doc.line_text(line));
+    let mut factor_species: Vec<ModelSpecies> = Vec::new();
+    let mut gases: Vec<Gas> = Vec::new();
+    let mut equilibria: Vec<Equilibrium> = Vec::new();
+    let mut reference_only = Vec::new();
+    for r in &doc.reactions {
+        let data: Vec<&DataLine> = match &r.label {
+            Some(label) => doc.data.iter().filter(|d| &d.label == label).collect(),
+            None => Vec::new(),
+        };
+        // A K without `at` holds at the file's temperature, never at a
+        // temperature given on the command line for this run.
+        let file_temperature = doc.temperature.map(|(t, _)| t);
+        let thermo = match resolve_thermo(&data, file_temperature, r.line) {
+            Ok(t) => t,
+            Err((line, d)) => {
+                errors.push(locate(line, d));
+                continue;
+            }
+        };
+        let name = r
+            .label
+            .clone()
+            .unwrap_or_else(|| crate::notation::render_reaction(&r.reaction, Style::Unicode));
+        let (thermo, data_line) = match thermo {
+            Some((thermo, line)) => (Some(thermo), line),
+            None if overrides.slopes_only => (None, r.line),
+            None => {
+                reference_only.push(name.clone());
+                notes.push(locate(
+                r.line,
+                Diagnostic::new(
+                    Code::NoThermoData,
+                    r.reaction.span.clone(),
+                    format!("`{name}` has no K or dH/dS: shown for reference, not part of the equilibrium"),
+                )
+                .with_help(if r.label.is_some() {
+                    "add `K label = ...` or `dH`/`dS` lines to make it an equilibrium"
+                } else {
+                    "label it (`red: ...`) and add `K red = ...` to make it an equilibrium"
+                }),
+            ));
+                continue;
+            }
+        };
+        if !r.ok {
+            // The balance diagnostics are already in `errors`.
+            continue;
+        }
+        let law = match mass_action_law(&r.reaction, r.label.as_deref()) {
+            Ok(l) => l,
+            Err(_) => {
+                errors.push(locate(
+                    r.line,
+                    Diagnostic::new(
+                        Code::Number,
+                        r.reaction.span.clone(),
+                        "the exponents of this law grew beyond the exact range",
+                    )
+                    .with_help("scale the coefficients down"),
+                ));
+                continue;
+            }
+        };
+        let mut row = Row::default();
+        let mut identity_change: BTreeMap<String, Q> = BTreeMap::new();
+        let too_large = || {
+            locate(
+                r.line,
+                model_overflow(r.reaction.span.clone(), "the species of this reaction"),
+            )
+        };
+        let mut overflow = false;
+        let mut electronic = true;
+        for f in &law.factors {
+            match f.kind {
+                FactorKind::Gas => {
+                    electronic = false;
+                    let index = match gases.iter().position(|g| g.key == f.key) {
+                        Some(i) => i,
+                        None => {
+                            gases.push(Gas {
+                                key: f.key.clone(),
+                                ascii: f.ascii.clone(),
+                                unicode: f.unicode.clone(),
+                                latex: f.latex.clone(),
+                                pressure: None,
+                            });
+                            gases.len() - 1
+                        }
+                    };
+                    row.gases.push((index, f.exponent));
+                }
+                FactorKind::Phase => electronic = false,
+                FactorKind::Lattice => match frozen_identity(&f.entity) {
+                    Ok(Some(id)) => {
+                        let slot = identity_change.entry(id).or_default();
+                        overflow |= number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
+                    }
+                    Ok(None) => {}
+                    Err(_) => overflow = true,
+                },
+                _ => {
+                    let index = match factor_species.iter().position(|s| s.key == f.key) {
+                        Some(i) => i,
+                        None => {
+                            let Ok(species) = model_species(f, host) else {
+                                overflow = true;
+                                continue;
+                            };
+                            factor_species.push(species);
+                            factor_species.len() - 1
+                        }
+                    };
+                    row.species.push((index, f.exponent));
+                    match frozen_identity(&f.entity) {
+                        Ok(Some(id)) => {
+                            let slot = identity_change.entry(id).or_default();
+                            overflow |= number::add(*slot, f.exponent).map(|v| *slot = v).is_err();
+                        }
+                        Ok(None) => {}
+                        Err(_) => overflow = true,
+                    }
+                }
+            }
+        }
+        if overflow {
+            errors.push(too_large());
+            continue;
+        }
+        if identity_change.values().any(|v| *v != Q::from_integer(0)) {
+            electronic = false;
+        }
+        equilibria.push(Equilibrium {
+            label: name,
+            law,
+            thermo,
+            row,
+            electronic,
+            line: r.line,
+            data_line,
+        });
+    }
+    Reactions {
+        factor_species,
+        gases,
+        equilibria,
+        reference_only,
+    }
+}
+
+/// Gas pressures: O2 is swept, the others need a `pressure` line.
+fn gas_pressures(
+    doc: &Document,
+    gases: &mut [Gas],
+    equilibria: &[Equilibrium],
+    errors: &mut Vec<Diagnostic>,
+    notes: &mut Vec<Diagnostic>,
+) {
+    let locate = |line: u32, d: Diagnostic| d.locate(line, doc.line_text(line));
+    for p in &doc.pressures {
+        if p.key == "gas O2" {
+            errors.push(locate(
+                p.line,
+                Diagnostic::new(Code::GasPressure, p.span.clone(), "pO2 is swept, not fixed")
+                    .with_help("set its range with `po2 1e-30 to 1e5 bar`"),
+            ));
+            continue;
+        }
+        match gases.iter_mut().find(|g| g.key == p.key) {
+            Some(g) if g.pressure.is_none() => g.pressure = Some(p.bar),
+            Some(_) => errors.push(locate(
+                p.line,
+                Diagnostic::new(
+                    Code::ModelDuplicate,
+                    p.span.clone(),
+                    format!("the pressure of {} is already given", p.text),
+                )
+                .with_help("keep one `pressure` line per gas"),
+            )),
+            None => notes.push(locate(
+                p.line,
+                Diagnostic::new(
+                    Code::NoThermoData,
+                    p.span.clone(),
+                    format!(
+                        "{} takes part in no equilibrium with data; its pressure is not used",
+                        p.text
+                    ),
+                )
+                .with_help("remove the line, or give data for a reaction with this gas"),
+            )),
+        }
+    }
+    for g in gases.iter() {
+        if g.key != "gas O2" && g.pressure.is_none() {
+            let line = equilibria
+                .iter()
+                .find(|e| e.law.factors.iter().any(|f| f.key == g.key))
+                .map_or(0, |e| e.line);
+            let formula = g.ascii.trim_start_matches('p');
+            errors.push(locate(
+                line,
+                Diagnostic::new(
+                    Code::GasPressure,
+                    0..doc.line_text(line).len(),
+                    format!("{} is in an equilibrium but has no pressure", g.unicode),
+                )
+                .with_help(format!("add `pressure {formula} = 0.03 bar` (your value)")),
+            ));
+        }
+    }
+}
+
+/// Fixed totals: the amount per formula unit of each `fix` line and its
+/// weight in each species; a charged dopant in no reaction joins the
+/// species as a fixed defect.
+fn fixed_totals(
+    doc: &Document,
+    host: &Host,
+    factor_species: &mut Vec<ModelSpecies>,
+    errors: &mut Vec<Diagnostic>,
+) -> Vec<Total> {
+    let locate = |line: u32, d: Diagnostic| d.locate(line, doc.line_text(line));
+    let mut totals: Vec<Total> = Vec::new();
+    for fix in &doc.fixes {
+        let identity = content_key(&fix.subject);
+        let mut present = factor_species
+            .iter()
+            .any(|s| s.content.iter().any(|(k, _)| *k == identity));
+        let exact_key = law::species_key(&fix.subject);
+        let written_charge = fix.subject.marks != crate::notation::MarkStyle::Unmarked;
+        if written_charge && !factor_species.iter().any(|s| s.key == exact_key) {
+            // A dopant that takes part in no reaction: a fixed charged species.
+            if let Some(f) = law::factor_of(&Entity::Species(fix.subject.clone())) {
+                if f.kind == FactorKind::Defect {
+                    match model_species(&f, host) {
+                        Ok(species) => {
+                            factor_species.push(species);
+                            present = true;
+                        }
+                        Err(_) => {
+                            errors.push(locate(
+                                fix.line,
+                                model_overflow(0..0, "the species of this line"),
+                            ));
+                            continue;
+                        }
+                    }
+                }
+            }
+        }
+        if !present {
+            errors.push(locate(
+                fix.line,
+                Diagnostic::new(
+                    Code::FixedTotal,
+                    fix.subject_span.clone(),
+                    "this species is in no equilibrium and has no charge written",
+                )
+                .with_help("write its charge (e.g. `Y_Zr'`) to add it as a fixed defect"),
+            ));
+            continue;
+        }
+        if totals.iter().any(|t| t.identity == identity) {
+            errors.push(locate(
+                fix.line,
+                Diagnostic::new(
+                    Code::ModelDuplicate,
+                    fix.subject_span.clone(),
+                    "this total is already fixed",
+                )
+                .with_help("keep one `fix` line per dopant"),
+            ));
+            continue;
+        }
+        match amount_per_formula_unit(fix, host) {
+            Ok((amount, description)) => {
+                let subject_unicode = crate::notation::render_species(&fix.subject, Style::Unicode);
+                let subject_ascii = crate::notation::render_species(&fix.subject, Style::Ascii);
+                totals.push(Total {
+                    subject_unicode,
+                    subject_ascii,
+                    identity,
+                    weights: Vec::new(),
+                    amount,
+                    description,
+                    line: fix.line,
+                });
+            }
+            Err(d) => errors.push(locate(fix.line, d)),
+        }
+    }
+    for t in &mut totals {
+        t.weights = factor_species
+            .iter()
+            .map(|s| {
+                number::sum(
+                    s.content
+                        .iter()
+                        .filter(|(k, _)| *k == t.identity)
+                        .map(|(_, n)| *n),
+                )
+            })
+            .collect::<Result<_, _>>()
+            .unwrap_or_else(|_| {
+                errors.push(locate(
+                    t.line,
+                    model_overflow(0..0, "the amounts of this total"),
+                ));
+                Vec::new()
+            });
+    }
+    totals
+}
+
+/// The exact log-linear network of the equilibria, electroneutrality and
+/// the fixed totals; one that cannot be built is one located error.
+fn model_network(
+    doc: &Document,
+    equilibria: &[Equilibrium],
+    totals: &[Total],
+    factor_species: &[ModelSpecies],
+    gases: usize,
+) -> Result<network::Network, Vec<Diagnostic>> {
+    let rows: Vec<Row> = equilibria.iter().map(|e| e.row.clone()).collect();
+    let charges: Vec<i32> = factor_species.iter().map(|s| s.charge).collect();
+    let total_weights: Vec<Vec<Q>> = totals.iter().map(|t| t.weights.clone()).collect();
+    network::build(factor_species.len(), gases, &rows, &charges, &total_weights).map_err(|e| {
+        vec![network_diagnostic(
+            e,
+            doc,
+            equilibria,
+            totals,
+            factor_species,
+        )]
+    })
 }
 
 fn network_diagnostic(
