@@ -7,7 +7,9 @@
 //! `Model`: the concentration species, the equilibria with their
 //! thermodynamic data, the fixed totals converted to amounts per formula
 //! unit, the automatically built electroneutrality, and the exact
-//! log-linear `Network` the solvers work on.
+//! log-linear `Network` the solvers work on. `read` turns the text into the
+//! `Document`, `build` assembles the `Model`; this file holds the model's
+//! types and accessors.
 
 mod build;
 pub mod builder;
