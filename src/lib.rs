@@ -81,7 +81,7 @@ pub use base::diagnostic::Diagnostic;
 pub use model::builder::ModelBuilder;
 pub use solve::scan::{ScanOptions, scan};
 
-use file::runner::{Checker, Event, OwnedReport, Recording, Summary};
+use file::runner::{Event, OwnedReport, Recording, Runner, Summary};
 use host::Host;
 use notation::Reaction;
 
@@ -157,7 +157,7 @@ pub fn check_text(name: &str, text: &str, host: Option<Host>) -> std::io::Result
         keep_passing: true,
         ..Recording::default()
     };
-    let mut checker = Checker::new(host, &mut recording);
+    let mut checker = Runner::new(host, &mut recording);
     checker.check_text(name, text)?;
     let summary = checker.finish()?;
     let mut checked = Checked {
