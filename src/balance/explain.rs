@@ -8,8 +8,9 @@
 
 use super::build::{Builder, gas, term};
 use super::matrix::{TooLarge, nullspace};
-use super::{Law, Status, System, Unknown, orient, signed, symbol};
+use super::{Law, Status, System, Unknown, orient, signed};
 use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::elements::symbol;
 use crate::base::number::{self, Q};
 use crate::host::Sublattice;
 use crate::notation::{

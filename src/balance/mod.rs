@@ -20,7 +20,6 @@ pub mod hint;
 mod matrix;
 
 use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::elements;
 use crate::base::number::{self, Q};
 use crate::host::{Host, SiteLookup};
 use crate::notation::{
@@ -277,10 +276,6 @@ fn signed(q: Q) -> String {
     } else {
         "0".into()
     }
-}
-
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
 }
 
 /// The span of what a term multiplies (the term without its coefficient).

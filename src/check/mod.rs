@@ -213,10 +213,6 @@ fn overflow_at(span: Span, what: &str) -> Diagnostic {
     .with_help("use smaller numbers; charges and counts are exact, so they cannot be approximated")
 }
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 struct Checker<'h> {
     host: Option<&'h Host>,
     diags: Vec<Diagnostic>,
@@ -357,7 +353,7 @@ impl Checker<'_> {
                         site_span,
                         format!(
                             "{} has {} sublattices in {}; name one",
-                            symbol(element),
+                            elements::symbol(element),
                             names.len(),
                             host.formula_text
                         ),
@@ -369,8 +365,8 @@ impl Checker<'_> {
             SiteLookup::Missing => {
                 self.sites_known = false;
                 let written = label.map_or_else(
-                    || symbol(element).to_string(),
-                    |l| format!("{}:{l}", symbol(element)),
+                    || elements::symbol(element).to_string(),
+                    |l| format!("{}:{l}", elements::symbol(element)),
                 );
                 let names: Vec<String> = host
                     .sublattices
@@ -612,7 +608,7 @@ impl Checker<'_> {
             .map(|(z, l, r)| {
                 format!(
                     "{} left {}, right {}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     number::to_plain(*l),
                     number::to_plain(*r)
                 )

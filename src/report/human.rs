@@ -152,7 +152,7 @@ pub fn write_table(
         "right"
     )?;
     for (z, l, r) in &table.elements {
-        let symbol = elements::by_z(*z).map_or("?", |e| e.symbol);
+        let symbol = elements::symbol(*z);
         writeln!(
             out,
             "  {:<14} {:>8} {:>8}  {}",

@@ -211,10 +211,6 @@ struct Model {
     defects: Vec<ModelDefect>,
 }
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 /// Why a composition could not be worked out.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct LevelError(pub String);
@@ -554,14 +550,14 @@ pub fn formula_text(formula: &[(u8, Q)]) -> String {
         .map(|(z, n)| {
             let v = to_f64(*n);
             if n.is_integer() && *n == Q::from_integer(1) {
-                symbol(*z).to_string()
+                elements::symbol(*z).to_string()
             } else if n.is_integer() {
-                format!("{}{}", symbol(*z), n.numer())
+                format!("{}{}", elements::symbol(*z), n.numer())
             } else {
                 let shown = format!("{v:.3}");
                 format!(
                     "{}{}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     shown.trim_end_matches('0').trim_end_matches('.')
                 )
             }
@@ -573,7 +569,7 @@ pub fn formula_text(formula: &[(u8, Q)]) -> String {
 pub fn formula_exact(formula: &[(u8, Q)]) -> String {
     formula
         .iter()
-        .map(|(z, n)| format!("{}{}", symbol(*z), number::to_plain(*n)))
+        .map(|(z, n)| format!("{}{}", elements::symbol(*z), number::to_plain(*n)))
         .collect::<Vec<_>>()
         .join(" ")
 }
