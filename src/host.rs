@@ -175,19 +175,11 @@ impl Host {
                 out,
                 "\n  {:<6} formal charge {:>5}  sites {}",
                 s.name(),
-                signed(s.charge),
+                number::signed(s.charge),
                 number::to_plain(s.count)
             );
         }
         out
-    }
-}
-
-fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        number::to_plain(q)
     }
 }
 
@@ -585,7 +577,7 @@ fn explicit_sites(
                 offset..self::byte_at(offset, decl.len()),
                 format!(
                     "the declared charges leave the formula unit with charge {}",
-                    number::to_plain(net)
+                    number::minus_text(net)
                 ),
             )
             .with_help("formal charges times site counts must add up to zero"),
@@ -656,6 +648,17 @@ mod tests {
             vec![row("Na", "1", "1"), row("Cl", "-1", "1")]
         );
         assert_eq!(charges("Al"), vec![row("Al", "0", "1")]);
+    }
+
+    #[test]
+    fn a_charged_formula_unit_is_named_with_a_true_minus() {
+        // Zr at +3 with two O at -2: 3 - 4 = -1 per formula unit
+        // (source: common practice, formal charges times site counts).
+        let err = Host::from_spec("ZrO2 sites Zr +3, O -2").unwrap_err();
+        assert_eq!(
+            err[0].message,
+            "the declared charges leave the formula unit with charge \u{2212}1"
+        );
     }
 
     #[test]

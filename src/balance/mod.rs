@@ -267,17 +267,6 @@ struct System<'r> {
     explain: bool,
 }
 
-/// A signed exact number with a true minus sign: `+2`, `−1/2`, `0`.
-fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(q).trim_start_matches('-'))
-    } else {
-        "0".into()
-    }
-}
-
 /// The span of what a term multiplies (the term without its coefficient).
 fn entity_span(term: &Term) -> Span {
     match &term.entity {
@@ -673,7 +662,7 @@ impl<'r> System<'r> {
                         format!(
                             "{} would need the coefficient {} on the {} side: it belongs on the {} side",
                             shown(),
-                            signed(*c),
+                            number::signed(*c),
                             u.side.as_str(),
                             u.side.other().as_str()
                         ),

@@ -31,6 +31,7 @@ pub mod segment;
 #[cfg(test)]
 mod tests;
 
+use crate::base::number;
 use arrhenius::{ArrheniusFit, ArrheniusForm, ComponentPoint, Enthalpy, KJ_PER_MOL_PER_EV};
 use decompose::{DecomposeOptions, Decomposition, Exponents};
 use linalg::critical_value;
@@ -497,7 +498,7 @@ fn analyse_isotherm(
                             sci(seg.po2_min_bar),
                             sci(seg.po2_max_bar),
                             seg.slope,
-                            regimes::slope_text(seg.matching.nearest)
+                            number::signed(seg.matching.nearest)
                         ));
                     }
                 }

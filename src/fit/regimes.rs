@@ -7,7 +7,9 @@
 //! Out: `ModelRegimes`, and `SlopeMatch` for a measured slope with its
 //! standard error.
 
-use crate::base::number::{self, Q};
+#[cfg(feature = "serde")]
+use crate::base::number;
+use crate::base::number::Q;
 
 /// How one concentration goes in a regime: `c ∝ pO2^slope · Π K_j^e_j`
 /// (times constants fixed by the regime, such as the dopant level).
@@ -392,18 +394,6 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
         within: within.iter().map(|c| c.slope).collect(),
         verdict,
         predicted_by: nearest.predicted_by.clone(),
-    }
-}
-
-/// A slope as `−1/4`, `0`, `+1/6` (sign always shown, Unicode minus).
-pub fn slope_text(s: Q) -> String {
-    let plain = number::to_plain(s).trim_start_matches('-').to_string();
-    if s < Q::from_integer(0) {
-        format!("−{plain}")
-    } else if s > Q::from_integer(0) {
-        format!("+{plain}")
-    } else {
-        plain
     }
 }
 

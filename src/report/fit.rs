@@ -5,7 +5,8 @@
 //! `Palette`.
 
 use super::Palette;
-use crate::fit::regimes::{Verdict, slope_text};
+use crate::base::number;
+use crate::fit::regimes::Verdict;
 use crate::fit::{FitReport, IsothermReport, sci};
 use std::io::{self, Write};
 
@@ -29,7 +30,7 @@ fn unit_for(exponent: crate::base::number::Q) -> String {
     if exponent == crate::base::number::Q::from_integer(0) {
         "S/cm".into()
     } else {
-        format!("S/cm at 1 bar, × pO2^({})", slope_text(exponent))
+        format!("S/cm at 1 bar, × pO2^({})", number::signed(exponent))
     }
 }
 
@@ -60,7 +61,7 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         if q == crate::base::number::Q::from_integer(0) {
             name.to_string()
         } else {
-            format!("{name}·pO2^({})", slope_text(q))
+            format!("{name}·pO2^({})", number::signed(q))
         }
     };
     writeln!(
@@ -116,10 +117,10 @@ fn write_regimes(out: &mut dyn Write, r: &FitReport) -> io::Result<()> {
             out,
             "    {}  n {:>5}  p {:>5}  {} {:>5}  {}",
             pad(&g.name, width),
-            slope_text(g.n.slope),
-            slope_text(g.p.slope),
+            number::signed(g.n.slope),
+            number::signed(g.p.slope),
             pad(&g.ionic_defect, ion_width),
-            slope_text(g.ion.slope),
+            number::signed(g.ion.slope),
             g.neutrality
         )?;
     }
@@ -198,7 +199,7 @@ fn write_isotherm(
                     .within
                     .iter()
                     .filter(|q| **q != s.matching.nearest)
-                    .map(|q| slope_text(*q))
+                    .map(|q| number::signed(*q))
                     .collect::<Vec<_>>()
                     .join(", ")
             )
@@ -211,7 +212,7 @@ fn write_isotherm(
             format!("{} … {}", sci(s.po2_min_bar), sci(s.po2_max_bar)),
             s.points,
             pm(s.slope, s.slope_se, 4),
-            slope_text(s.matching.nearest),
+            number::signed(s.matching.nearest),
             verdict_text,
         )?;
     }

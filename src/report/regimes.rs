@@ -22,15 +22,6 @@ pub enum Along {
     Unordered,
 }
 
-/// A slope with its sign and a Unicode minus: `+1/4`, `−1/6`, `0`.
-fn unicode_slope(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        number::to_plain(q).replacen('-', "−", 1)
-    }
-}
-
 /// The species' Unicode symbols and the column width that fits them all,
 /// for the terminal tables of regimes and concentrations.
 pub fn species_columns(model: &Model) -> (Vec<String>, usize) {
@@ -104,7 +95,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
             row.push_str(&pad(&sig(r.to, 3), 11));
         }
         for s in 0..model.species.len() {
-            row.push_str(&pad(&unicode_slope(r.slope(model, s)), width));
+            row.push_str(&pad(&number::signed(r.slope(model, s)), width));
         }
         let _ = writeln!(out, "{}", row.trim_end());
     }
@@ -126,7 +117,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
             ),
             &|r, s| {
                 let e = r.laws.total.get(s).and_then(|row| row.get(j)).copied();
-                unicode_slope(e.unwrap_or(Q::from_integer(0)))
+                number::signed(e.unwrap_or(Q::from_integer(0)))
             },
         );
     }

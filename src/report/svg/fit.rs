@@ -6,8 +6,9 @@
 //! drawn with the SVG writer's shared pieces (`super`).
 
 use super::{close, escape, frame, open};
+use crate::base::number;
 use crate::fit::FitReport;
-use crate::fit::regimes::{Verdict, slope_text};
+use crate::fit::regimes::Verdict;
 use std::fmt::Write;
 
 const WIDTH: f64 = 760.0;
@@ -137,10 +138,18 @@ pub fn render_fit(r: &FitReport) -> String {
             let label = match seg.matching.verdict {
                 _ if seg.mixed => format!("transition ({:+.3})", seg.slope),
                 Verdict::Match => {
-                    format!("{} ({:+.3})", slope_text(seg.matching.nearest), seg.slope)
+                    format!(
+                        "{} ({:+.3})",
+                        number::signed(seg.matching.nearest),
+                        seg.slope
+                    )
                 }
                 Verdict::Ambiguous => {
-                    format!("{}? ({:+.3})", slope_text(seg.matching.nearest), seg.slope)
+                    format!(
+                        "{}? ({:+.3})",
+                        number::signed(seg.matching.nearest),
+                        seg.slope
+                    )
                 }
                 Verdict::NoMatch => format!("no match ({:+.3})", seg.slope),
                 Verdict::Untested => format!("{:+.3}", seg.slope),
