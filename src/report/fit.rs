@@ -6,6 +6,7 @@
 
 use super::Palette;
 use crate::base::number;
+use crate::base::text::{self, pad};
 use crate::fit::regimes::Verdict;
 use crate::fit::{FitReport, IsothermReport, sci};
 use std::io::{self, Write};
@@ -97,21 +98,15 @@ fn write_regimes(out: &mut dyn Write, r: &FitReport) -> io::Result<()> {
     let width = r
         .regimes
         .iter()
-        .map(|g| g.name.chars().count())
+        .map(|g| text::width(&g.name))
         .max()
         .unwrap_or(0);
     let ion_width = r
         .regimes
         .iter()
-        .map(|g| g.ionic_defect.chars().count())
+        .map(|g| text::width(&g.ionic_defect))
         .max()
         .unwrap_or(0);
-    let pad = |text: &str, to: usize| {
-        format!(
-            "{text}{}",
-            " ".repeat(to.saturating_sub(text.chars().count()))
-        )
-    };
     for g in &r.regimes {
         writeln!(
             out,

@@ -5,6 +5,7 @@
 //! text.
 
 use crate::base::number::{self, Q};
+use crate::base::text::{self, pad};
 use crate::model::Model;
 use crate::model::thermo::sig;
 use crate::notation::Style;
@@ -30,18 +31,12 @@ pub fn species_columns(model: &Model) -> (Vec<String>, usize) {
         .collect();
     let width = names
         .iter()
-        .map(|n| n.chars().count())
+        .map(|n| text::width(n))
         .max()
         .unwrap_or(4)
         .max(10)
         + 2;
     (names, width)
-}
-
-/// `text` padded with spaces to `width` characters.
-pub fn pad(text: &str, width: usize) -> String {
-    let n = text.chars().count();
-    format!("{text}{}", " ".repeat(width.saturating_sub(n)))
 }
 
 /// The regimes part of `lacuna brouwer --format table` (also the
@@ -68,7 +63,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
         .collect();
     let cw = conditions
         .iter()
-        .map(|c| c.chars().count())
+        .map(|c| text::width(c))
         .max()
         .unwrap_or(10)
         .max(10)

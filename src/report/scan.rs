@@ -6,6 +6,7 @@
 
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
+use crate::base::text::pad;
 use crate::model::Model;
 use crate::model::thermo::{sig, temperature_text};
 use crate::notation::Style;
@@ -89,7 +90,6 @@ pub fn table_text(model: &Model, run: &Scan) -> String {
         let _ = writeln!(out, "{line}");
     }
     let (names, width) = regimes::species_columns(model);
-    let pad = regimes::pad;
     if !run.regimes.is_empty() {
         let along = if matches!(run.mode, Mode::Temperature { .. }) {
             Along::Temperature
