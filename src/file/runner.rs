@@ -12,7 +12,7 @@ mod files;
 use crate::balance::hint::check_with_hint;
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::Verdict;
-use crate::check::rules::{FileLints, Levels, ReactionFacts};
+use crate::check::rules::{FileLints, ReactionFacts, RuleLevels};
 use crate::file::reader::{HostHandle, HostTracker, Line, ReactionHost, classify, read_reaction};
 use crate::host::Host;
 use crate::notation::{Reaction, Span};
@@ -99,7 +99,7 @@ impl Summary {
 /// Checks reaction sources one after another, keeping per-source state.
 pub struct Checker<'s> {
     default_host: Option<Arc<Host>>,
-    levels: Levels,
+    levels: RuleLevels,
     sink: &'s mut dyn Sink,
     pub summary: Summary,
 }
@@ -517,14 +517,14 @@ impl<'s> Checker<'s> {
     pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
         Checker {
             default_host: default_host.map(Arc::new),
-            levels: Levels::default(),
+            levels: RuleLevels::default(),
             sink,
             summary: Summary::default(),
         }
     }
 
     /// Sets the rule levels (from `lacuna.toml` and the command line).
-    pub fn with_levels(mut self, levels: Levels) -> Self {
+    pub fn with_levels(mut self, levels: RuleLevels) -> Self {
         self.levels = levels;
         self
     }

@@ -491,7 +491,7 @@ fn analyse_isotherm(
                         .dominant
                         .as_ref()
                         .is_some_and(|(_, share)| *share < DOMINANT_SHARE);
-                    if seg.mixed && seg.matching.verdict != regimes::Verdict::NoMatch {
+                    if seg.mixed && seg.matching.verdict != regimes::SlopeVerdict::NoMatch {
                         notes.push(format!(
                             "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
                             iso.label,

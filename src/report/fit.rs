@@ -7,7 +7,7 @@
 use super::Palette;
 use crate::base::number;
 use crate::base::text::{self, pad};
-use crate::fit::regimes::Verdict;
+use crate::fit::regimes::SlopeVerdict;
 use crate::fit::{FitReport, IsothermReport, sci};
 use std::io::{self, Write};
 
@@ -163,11 +163,11 @@ fn write_isotherm(
         let verdict = s.matching.verdict;
         let verdict_text = match verdict {
             _ if s.mixed => "transition".to_string(),
-            Verdict::Match => p.good(verdict.as_str()),
-            Verdict::NoMatch => p.bad(verdict.as_str()),
+            SlopeVerdict::Match => p.good(verdict.as_str()),
+            SlopeVerdict::NoMatch => p.bad(verdict.as_str()),
             _ => verdict.as_str().to_string(),
         };
-        let predicted = if verdict == Verdict::NoMatch {
+        let predicted = if verdict == SlopeVerdict::NoMatch {
             "none within the interval".to_string()
         } else if s.matching.predicted_by.is_empty() {
             "no regime of the model".to_string()
@@ -187,7 +187,7 @@ fn write_isotherm(
             ),
             _ => predicted,
         };
-        let also = if verdict == Verdict::Ambiguous {
+        let also = if verdict == SlopeVerdict::Ambiguous {
             format!(
                 " (also {})",
                 s.matching

@@ -9,7 +9,7 @@ use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
 use crate::base::text::{pad, width};
 use crate::generate::dope::compound_text;
-use crate::generate::dope::level::{self, Composition, Level, Volume};
+use crate::generate::dope::level::{self, Composition, DopantLevel, Volume};
 use crate::generate::dope::{Dopant, DopeOptions, Report, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
 use crate::report::dope::{TableInput, write_report};
@@ -183,7 +183,7 @@ fn convert(
     host: &Host,
     dopant: &Dopant,
     report: &Report,
-    level: &Level,
+    level: &DopantLevel,
     volume: Option<Volume>,
 ) -> LevelResult {
     let text = args.level.as_deref().unwrap_or("");
