@@ -35,6 +35,18 @@
 //! # Ok::<(), Box<dyn std::error::Error>>(())
 //! ```
 //!
+//! The example of README.md (a test keeps the two the same):
+//!
+//! ```
+//! fn main() -> Result<(), Box<dyn std::error::Error>> {
+//!     let zirconia = lacuna::host("ZrO2")?;
+//!     let reduction = "O_O -> V_O.. + 2e' + 1/2 O2(g)";
+//!     let checked = lacuna::check_text("notebook", reduction, Some(zirconia))?;
+//!     assert!(checked.ok());
+//!     Ok(())
+//! }
+//! ```
+//!
 //! # The pipeline, one folder per stage
 //!
 //! `base` holds exact numbers, diagnostics and element data; `notation`
@@ -69,7 +81,7 @@ pub use base::diagnostic::Diagnostic;
 pub use model::builder::ModelBuilder;
 pub use solve::scan::{ScanOptions, scan};
 
-use file::runner::{Checker, Event, OwnedReport, Recording, Summary};
+use file::runner::{Event, OwnedReport, Recording, Runner, Summary};
 use host::Host;
 use notation::Reaction;
 
@@ -145,7 +157,7 @@ pub fn check_text(name: &str, text: &str, host: Option<Host>) -> std::io::Result
         keep_passing: true,
         ..Recording::default()
     };
-    let mut checker = Checker::new(host, &mut recording);
+    let mut checker = Runner::new(host, &mut recording);
     checker.check_text(name, text)?;
     let summary = checker.finish()?;
     let mut checked = Checked {

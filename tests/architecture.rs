@@ -575,7 +575,7 @@ fn the_stage_graph_is_read_from_the_tree() {
             .iter()
             .any(|(a, b)| a.join("::") == from && b.join("::") == to)
     };
-    assert!(has("file::runner", "check"), "{edges:?}");
+    assert!(has("file::runner::sink", "check"), "{edges:?}");
     assert!(has("notation::parse", "notation"), "{edges:?}");
 }
 

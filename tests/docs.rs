@@ -247,3 +247,31 @@ fn split_words(line: &str) -> Vec<String> {
     }
     words
 }
+
+/// README.md's Rust examples are doctests of the crate's front page: each
+/// one appears there verbatim, so it compiles and runs with `cargo test`.
+#[test]
+fn every_readme_rust_example_is_a_doctest() {
+    let readme = fs::read_to_string(repo("README.md")).expect("README.md");
+    let lib = fs::read_to_string(repo("src/lib.rs")).expect("src/lib.rs");
+    let doc: String = lib
+        .lines()
+        .filter_map(|l| l.strip_prefix("//!"))
+        .map(|l| l.strip_prefix(' ').unwrap_or(l))
+        .collect::<Vec<_>>()
+        .join("\n");
+    let mut examples = 0;
+    let mut rest = readme.as_str();
+    while let Some(start) = rest.find("```rust\n") {
+        let body = &rest[start + "```rust\n".len()..];
+        let end = body.find("```").expect("closed rust block");
+        let example = &body[..end];
+        assert!(
+            doc.contains(&format!("```\n{example}```")),
+            "README.md example not among src/lib.rs doctests:\n{example}"
+        );
+        examples += 1;
+        rest = &body[end..];
+    }
+    assert!(examples >= 1, "README.md shows no Rust example");
+}

@@ -5,7 +5,7 @@
 use crate::support::lacuna;
 use lacuna::check::check_reaction;
 use lacuna::file::layout::{MarkSpelling, format_text};
-use lacuna::file::runner::{Checker, Recording};
+use lacuna::file::runner::{Recording, Runner};
 use lacuna::host::Host;
 use lacuna::notation::parse_reaction;
 use proptest::prelude::*;
@@ -136,7 +136,7 @@ proptest! {
         }
         let file = format!("host ZrO2\n{text}\n{text}\n");
         let mut recording = Recording::default();
-        let mut checker = Checker::new(None, &mut recording);
+        let mut checker = Runner::new(None, &mut recording);
         prop_assert!(checker.check_text("x", &file).is_ok());
         let _ = format_text(&file, MarkSpelling::Unicode);
     }
@@ -145,7 +145,7 @@ proptest! {
     #[test]
     fn arbitrary_bytes_never_panic(bytes in prop::collection::vec(any::<u8>(), 0..200)) {
         let mut recording = Recording::default();
-        let mut checker = Checker::new(None, &mut recording);
+        let mut checker = Runner::new(None, &mut recording);
         prop_assert!(checker.check_reader("x", bytes.as_slice()).is_ok());
     }
 }

@@ -15,6 +15,7 @@ mod fit;
 mod generated_reactions;
 mod hostile;
 mod laws;
+mod layers;
 mod lint_cli;
 mod model_grammar;
 mod native;

@@ -276,7 +276,8 @@ fn a_full_disk_gives_exit_2_and_says_so() {
         assert_eq!(code, Some(2), "{}\nstderr:\n{stderr}", shown(case));
         assert!(!stderr.contains("panicked"), "{}: {stderr}", shown(case));
         assert!(
-            stderr.contains("lacuna:") && stderr.contains("No space left on device"),
+            stderr.contains("lacuna: cannot write the output: ")
+                && stderr.contains("No space left on device"),
             "{}: stderr should say the output could not be written:\n{stderr}",
             shown(case)
         );

@@ -336,12 +336,12 @@ type Balances = (bool, bool, Option<bool>);
 
 /// Per reaction: line, ok, and the balances.
 fn verdicts(text: &str) -> Vec<(u32, bool, Option<Balances>)> {
-    use lacuna::file::runner::{Checker, Event, Recording};
+    use lacuna::file::runner::{Event, Recording, Runner};
     let mut recording = Recording {
         events: Vec::new(),
         keep_passing: true,
     };
-    let mut checker = Checker::new(None, &mut recording);
+    let mut checker = Runner::new(None, &mut recording);
     checker.check_text("x", text).expect("in memory");
     let _ = checker.finish();
     recording

@@ -20,7 +20,33 @@ use std::fmt;
 /// quotient goes through a checked method (`checked_add`, [`sum`], ...)
 /// that returns [`Overflow`] when the exact result does not fit, so a
 /// wrapped number cannot reach the user and unchecked arithmetic does not
-/// compile.
+/// compile:
+///
+/// ```compile_fail
+/// use lacuna::base::number::int;
+/// let _ = int(1) + int(2); // no `Add` for `Q`
+/// ```
+///
+/// ```compile_fail
+/// use lacuna::base::number::int;
+/// let _ = int(2) * int(3); // no `Mul` for `Q`
+/// ```
+///
+/// ```compile_fail
+/// use lacuna::base::number::{Q, int};
+/// let _: Q = [int(1), int(2)].into_iter().sum(); // no `Sum` for `Q`
+/// ```
+///
+/// ```compile_fail
+/// use lacuna::base::number::int;
+/// let _ = -int(1); // no `Neg` for `Q`
+/// ```
+///
+/// ```
+/// use lacuna::base::number::{Overflow, int};
+/// assert_eq!(int(1).checked_add(int(2)), Ok(int(3)));
+/// assert_eq!(int(i64::MAX).checked_add(int(1)), Err(Overflow));
+/// ```
 #[derive(Clone, Copy)]
 pub struct Q(Ratio<i64>);
 

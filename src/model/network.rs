@@ -34,7 +34,7 @@ pub struct Row {
 
 /// What kind of constraint a level of the network is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Level {
+pub enum Constraint {
     /// Σ z_s c_s = 0.
     Charge,
     /// Σ m_s c_s = total (the index of the total in the caller's list).
@@ -48,7 +48,7 @@ pub struct Network {
     pub equilibria: usize,
     pub gases: usize,
     /// The constraint levels, charge first when present.
-    pub levels: Vec<Level>,
+    pub levels: Vec<Constraint>,
     /// `weights[l][s]`: the coefficient of species s in constraint l (its charge
     /// or its count in a total), which is also the exponent of y_l in ln c_s.
     pub weights: Vec<Vec<Q>>,
@@ -161,7 +161,7 @@ pub fn build_general(
     let mut levels = Vec::new();
     let mut constraint_rows: Matrix = Vec::new();
     if charged {
-        levels.push(Level::Charge);
+        levels.push(Constraint::Charge);
         constraint_rows.push(charge_vector);
     }
     for (t, weights) in totals.iter().enumerate() {
@@ -181,7 +181,7 @@ pub fn build_general(
         if linalg::rank(&constraint_rows) < constraint_rows.len() {
             return Err(NetworkError::RedundantTotal { total: t });
         }
-        levels.push(Level::Total(t));
+        levels.push(Constraint::Total(t));
     }
     // The constraints must span the whole null space of the stoichiometry.
     let null = linalg::null_space(&nu, species);
@@ -272,7 +272,7 @@ mod tests {
             gases: vec![(0, Q::new(1, 2))],
         }];
         let net = build(2, 1, &rows, &[2, -1], &[]).expect("well posed");
-        assert_eq!(net.levels, vec![Level::Charge]);
+        assert_eq!(net.levels, vec![Constraint::Charge]);
         // Mass action holds for any y: ln V + 2 ln n = ln K − ½ ln p.
         let combo_k = number::sum_checked([Ok(net.k[0][0]), q(2).checked_mul(net.k[1][0])]);
         let combo_p = number::sum_checked([Ok(net.q[0][0]), q(2).checked_mul(net.q[1][0])]);

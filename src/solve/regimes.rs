@@ -15,7 +15,7 @@ use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::linalg::{self, Matrix, R};
 use crate::base::number::{self, Overflow, Q};
 use crate::model::Model;
-use crate::model::network::Level;
+use crate::model::network::Constraint;
 use crate::model::thermo::{BOLTZMANN_EV_PER_K, Thermo};
 use crate::notation::Style;
 use num_traits::{One, Zero};
@@ -150,7 +150,7 @@ pub fn power_laws(model: &Model, dominance: &Dominance) -> Result<Option<PowerLa
         let mut row_b = vec![R::zero(); width];
         let mut row_c = Vec::new();
         match level {
-            Level::Charge => {
+            Constraint::Charge => {
                 let (Some(p), Some(n)) = (dominance.positive, dominance.negative) else {
                     return Ok(None);
                 };
@@ -168,7 +168,7 @@ pub fn power_laws(model: &Model, dominance: &Dominance) -> Result<Option<PowerLa
                 row_c.push((Q::from_integer(zn), R::one()));
                 row_c.push((Q::from_integer(zp), -R::one()));
             }
-            Level::Total(j) => {
+            Constraint::Total(j) => {
                 let Some(&d) = dominance.totals.get(*j) else {
                     return Ok(None);
                 };

@@ -6,7 +6,7 @@
 //! and peak memory independent of file length (under 64 MB for the million
 //! lines). This prints what it measured; it asserts nothing about time.
 
-use lacuna::file::runner::Checker;
+use lacuna::file::runner::Runner;
 
 use lacuna::check::rules::{RuleLevel, RuleLevels};
 use lacuna::report::{Palette, human::HumanSink};
@@ -76,7 +76,7 @@ fn main() -> std::io::Result<()> {
     levels
         .set("repeated-reaction", RuleLevel::Allow)
         .map_err(std::io::Error::other)?;
-    let mut checker = Checker::new(None, &mut sink).with_levels(levels);
+    let mut checker = Runner::new(None, &mut sink).with_levels(levels);
     // As `lacuna check FILE` does: the lines are prepared on every core.
     checker.check_reader_parallel(
         "million.kvr",

@@ -2,6 +2,7 @@
 //! Exit 0 when the species balance (uniquely or in several ways), 1 when
 //! they cannot or the reaction has errors, 2 for usage errors.
 
+use super::shared::output_failed;
 use super::shared::{ColorChoice, NotationStyle, OutputFormat, fail, host_argument, print_json};
 use crate::balance::checked::check_and_balance;
 use crate::balance::{Balancing, Status};
@@ -76,8 +77,7 @@ pub fn run(args: &BalanceArgs) -> ExitCode {
         )),
     };
     match result {
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
         Ok(()) => match outcome.map(|o| o.status) {
             Some(Status::Unique | Status::Several) => ExitCode::SUCCESS,
             _ => ExitCode::from(1),

@@ -3,6 +3,7 @@
 //! terminal table, CSV, JSON or an SVG diagram.
 
 use super::model_input::{gather, print_diagnostics};
+use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
 use crate::model::thermo;
@@ -201,22 +202,18 @@ pub fn run(args: &BrouwerArgs) -> ExitCode {
         BrouwerFormat::Svg => svg_text(&model, &run),
     };
     let written = match &args.output {
-        Some(path) => {
-            std::fs::write(path, text.as_bytes()).map_err(|e| (path.display().to_string(), e))
-        }
+        Some(path) => std::fs::write(path, text.as_bytes())
+            .map_err(|e| fail(format!("cannot write {}: {e}", path.display()))),
         None => {
             let stdout = io::stdout();
             let mut out = BufWriter::new(stdout.lock());
             out.write_all(text.as_bytes())
                 .and_then(|()| out.flush())
-                .map_err(|e| ("standard output".to_string(), e))
+                .map_err(|e| output_failed(&e))
         }
     };
-    if let Err((target, e)) = written {
-        if e.kind() == io::ErrorKind::BrokenPipe {
-            return ExitCode::from(2);
-        }
-        return fail(format!("cannot write {target}: {e}"));
+    if let Err(code) = written {
+        return code;
     }
     // Warnings go to stderr for every format (stdout may be CSV or SVG).
     if args.format != BrouwerFormat::Table {

@@ -3,7 +3,7 @@
 
 use super::shared::{ColorChoice, fail, host_argument, output_failed, reaction_files};
 use crate::check::rules::{RuleLevel, RuleLevels, find_config};
-use crate::file::runner::{Checker, Sink};
+use crate::file::runner::{Runner, Sink};
 use crate::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
 use clap::{Args, ValueEnum};
 use std::cell::Cell;
@@ -97,7 +97,7 @@ pub fn run(args: &CheckArgs) -> ExitCode {
         Format::Sarif => Box::new(SarifSink::new(out)),
     };
     let mut io_failed = false;
-    let mut checker = Checker::new(host.clone(), sink.as_mut()).with_levels(levels.clone());
+    let mut checker = Runner::new(host.clone(), sink.as_mut()).with_levels(levels.clone());
     for path in &args.files {
         let result = if path.as_os_str() == "-" {
             checker.check_reader("<stdin>", io::stdin().lock())
@@ -144,7 +144,7 @@ pub fn run(args: &CheckArgs) -> ExitCode {
 
 /// Checks one file named alone, its lines spread over the cores (files of
 /// a folder are checked side by side instead).
-fn check_file(checker: &mut Checker<'_>, path: &Path) -> io::Result<()> {
+fn check_file(checker: &mut Runner<'_>, path: &Path) -> io::Result<()> {
     let file = File::open(path)?;
     let reader = BufReader::with_capacity(1 << 16, file);
     checker.check_reader_parallel(&path.display().to_string(), reader)

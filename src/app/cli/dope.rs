@@ -3,6 +3,7 @@
 //! least one mechanism balances, 1 when none does or the level cannot be
 //! reached, 2 for usage errors (unreadable host, dopant, site or level).
 
+use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
@@ -171,8 +172,7 @@ pub fn run(args: &DopeArgs) -> ExitCode {
         )),
     };
     match result {
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
         Ok(()) if diagnostics.iter().any(Diagnostic::is_error) => ExitCode::from(1),
         Ok(()) => ExitCode::SUCCESS,
     }

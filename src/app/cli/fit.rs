@@ -4,6 +4,7 @@
 //! (SVG) to files.
 
 use super::model_input::{gather, print_diagnostics};
+use super::shared::output_failed;
 use super::shared::{ColorChoice, fail};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::fit::arrhenius::ArrheniusForm;
@@ -177,8 +178,7 @@ pub fn run(args: &FitArgs) -> ExitCode {
     };
     match written.and_then(|_| out.flush()) {
         Ok(()) => ExitCode::SUCCESS,
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
     }
 }
 

@@ -2,6 +2,7 @@
 //! units of K, as Unicode, plain text, LaTeX or JSON.
 
 use super::model_input::{Source, gather, print_diagnostics};
+use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::Diagnostic;
 use crate::model::laws::{LawEntry, document_laws, document_neutrality};
@@ -124,8 +125,7 @@ pub fn run(args: &LawArgs) -> ExitCode {
     match written.and_then(|()| out.flush()) {
         Ok(()) if any_error => ExitCode::from(1),
         Ok(()) => ExitCode::SUCCESS,
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
     }
 }
 

@@ -1,6 +1,7 @@
 //! `lacuna native`: the intrinsic defect reactions of a host, balanced.
 
-use super::shared::{ColorChoice, fail, host_argument};
+use super::shared::output_failed;
+use super::shared::{ColorChoice, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::text;
@@ -106,8 +107,7 @@ pub fn run(args: &NativeArgs) -> ExitCode {
         })(),
     };
     match result {
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => ExitCode::from(2),
-        Err(e) => fail(e),
+        Err(e) => output_failed(&e),
         Ok(()) if catalogue.reactions.is_empty() => ExitCode::from(1),
         Ok(()) => ExitCode::SUCCESS,
     }

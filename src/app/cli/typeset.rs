@@ -3,6 +3,7 @@
 //! reaction pasted from a manuscript); checks what it typesets and reports
 //! problems on stderr, but always writes what the input says.
 
+use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::check::Verdict;
@@ -275,11 +276,7 @@ pub fn run(args: &TypesetArgs) -> ExitCode {
             }
         };
         if let Err(e) = run.file(&name, &text, host.as_ref()) {
-            return if e.kind() == io::ErrorKind::BrokenPipe {
-                ExitCode::from(2)
-            } else {
-                fail(e)
-            };
+            return output_failed(&e);
         }
     }
     // The inline reactions are one source, as `check --reaction` reads them.
@@ -311,20 +308,16 @@ pub fn run(args: &TypesetArgs) -> ExitCode {
             }
         };
         if let Err(e) = result {
-            return fail(e);
+            return output_failed(&e);
         }
     }
     for species in &args.species {
         if let Err(e) = run.species(species) {
-            return fail(e);
+            return output_failed(&e);
         }
     }
     if let Err(e) = run.out.flush() {
-        return if e.kind() == io::ErrorKind::BrokenPipe {
-            ExitCode::from(2)
-        } else {
-            fail(e)
-        };
+        return output_failed(&e);
     }
     if run.unchecked_sites {
         let _ = writeln!(

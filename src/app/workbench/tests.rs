@@ -1,5 +1,9 @@
+use super::args::{closest_command, edit_distance};
 use super::*;
+use crate::host::Host;
+use crate::notation::Reaction;
 use crate::notation::parse_reaction;
+use crate::report::Palette;
 
 fn run(session: &mut Session, input: &str) -> String {
     let mut out = Vec::new();

@@ -8,7 +8,7 @@
 //! report is the one `check_reader` gives file after file, and memory stays
 //! bounded by the batch.
 
-use super::{Checker, Recording, Summary};
+use super::{Recording, Runner, Summary};
 use crate::check::rules::RuleLevels;
 use crate::host::Host;
 use std::fs::File;
@@ -24,7 +24,7 @@ const BATCH: usize = 256;
 /// One file checked on a worker thread: its events, totals and read error.
 type FileResult = (Recording, Summary, Option<io::Error>);
 
-impl Checker<'_> {
+impl Runner<'_> {
     /// Checks reaction files on all cores and reports them in order. A file
     /// that cannot be read is skipped and returned with the reason; an
     /// error of the sink (writing the report) stops the run and is the `Err`.
@@ -100,7 +100,7 @@ fn check_one(
         events: Vec::new(),
         keep_passing,
     };
-    let mut local = Checker::new(None, &mut recording).with_levels(levels.clone());
+    let mut local = Runner::new(None, &mut recording).with_levels(levels.clone());
     local.default_host = host.clone();
     let error = File::open(path)
         .and_then(|file| {
@@ -154,7 +154,7 @@ mod tests {
     fn report(files: &[PathBuf], parallel: bool) -> (String, Summary, Vec<PathBuf>) {
         let mut sink = Lines::default();
         let host = Host::from_spec("ZrO2").ok();
-        let mut checker = Checker::new(host, &mut sink);
+        let mut checker = Runner::new(host, &mut sink);
         let mut unreadable = Vec::new();
         if parallel {
             unreadable = checker

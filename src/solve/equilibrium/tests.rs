@@ -1,6 +1,7 @@
 //! The numerical solver against closed forms and published numbers.
 
 use super::*;
+use crate::model::Model;
 use crate::model::thermo::BOLTZMANN_EV_PER_K;
 use crate::model::{Overrides, read};
 use crate::notation::Style;

@@ -1,10 +1,5 @@
-//! Full numerical defect equilibria: every term kept, every point checked.
-//!
-//! In: a `Model` (or any `Network` with numbers), a temperature and pO2 (or
-//! sweeps of either), and for the frozen-in case two temperatures. Out:
-//! `Point`s with log concentrations, the relative electroneutrality
-//! residual and a `converged` flag that is false (never silently) when the
-//! residual is above 1e-12.
+//! The bracketed root solver: the constraints of a network (charge, fixed
+//! totals) solved for one set of offsets, with a verdict on the residuals.
 //!
 //! Method. With the network's parametrisation `ln c_s = a_s + Σ_l w_ls y_l`
 //! the mass-action laws hold for every `y`; the constraints (charge first,
@@ -18,10 +13,8 @@
 //! one search per fixed total, bracketed by expansion, with the exact slope
 //! of the reduced function (a Schur complement of the Hessian of Φ).
 
-use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::Q;
-use crate::model::Model;
-use crate::model::network::{self, Level, Network, Row};
+use crate::model::network::{Constraint, Network};
 
 /// Relative electroneutrality (and total) residual a point must reach.
 pub const TOLERANCE: f64 = 1e-12;
@@ -45,7 +38,8 @@ fn log_add(a: f64, b: f64) -> f64 {
     }
 }
 
-fn q_to_f64(q: Q) -> f64 {
+/// An exact weight as a float.
+pub(super) fn q_to_f64(q: Q) -> f64 {
     *q.numer() as f64 / *q.denom() as f64
 }
 
@@ -53,7 +47,7 @@ fn q_to_f64(q: Q) -> f64 {
 #[derive(Debug, Clone)]
 pub struct System {
     pub species: usize,
-    pub levels: Vec<Level>,
+    pub levels: Vec<Constraint>,
     /// w[l * species + s]
     w: Vec<f64>,
     /// ln |w| (unused where w = 0).
@@ -73,9 +67,9 @@ pub struct Work {
     pub evaluations: u32,
 }
 
-/// Outcome of one solve.
+/// Whether one solve converged, and its residuals.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Outcome {
+pub struct Convergence {
     pub converged: bool,
     /// Relative electroneutrality residual |Σ z c| / Σ |z| c (0 when nothing is charged).
     pub charge_residual: f64,
@@ -95,7 +89,7 @@ impl System {
             .map(|x| if *x != 0.0 { x.abs().ln() } else { 0.0 })
             .collect();
         let mut charge_slope_bound = 0.0;
-        if network.levels.first() == Some(&Level::Charge) {
+        if network.levels.first() == Some(&Constraint::Charge) {
             let row = &w[..species];
             let min_pos = row
                 .iter()
@@ -121,7 +115,7 @@ impl System {
     /// solutions). Without a charge level it is returned unchanged.
     pub fn with_charge_row(&self, row: &[f64]) -> System {
         let mut copy = self.clone();
-        if self.levels.first() == Some(&Level::Charge) && row.len() == self.species {
+        if self.levels.first() == Some(&Constraint::Charge) && row.len() == self.species {
             for (s, &z) in row.iter().enumerate() {
                 copy.w[s] = z;
                 copy.ln_w[s] = if z != 0.0 { z.abs().ln() } else { 0.0 };
@@ -201,7 +195,7 @@ impl System {
     /// electroneutrality): h = ln(P + Q⁻) − ln(N + Q⁺).
     fn residual(&self, level: usize, targets: &[f64], work: &mut Work) -> (f64, f64) {
         match self.levels[level] {
-            Level::Charge => {
+            Constraint::Charge => {
                 let (lp, dp) = self.log_sum(level, true, &work.e);
                 let (ln, dn) = self.log_sum(level, false, &work.e);
                 let q = targets.get(level).copied().unwrap_or(0.0);
@@ -217,7 +211,7 @@ impl System {
                     (shifted - ln, dp * (lp - shifted).exp() + dn)
                 }
             }
-            Level::Total(_) => {
+            Constraint::Total(_) => {
                 let (ls, _) = self.log_sum(level, true, &work.e);
                 let h = ls - targets.get(level).copied().unwrap_or(0.0);
                 (h, self.reduced_slope(level, ls, work))
@@ -313,7 +307,7 @@ impl System {
         let (mut h, mut d) = self.residual(level, ln_targets, work);
         // The slope bound brackets the root at once, but only for plain
         // electroneutrality (no offset charge).
-        let is_charge = self.levels[level] == Level::Charge
+        let is_charge = self.levels[level] == Constraint::Charge
             && ln_targets.get(level).copied().unwrap_or(0.0) == 0.0
             && self.charge_slope_bound.is_finite()
             && self.charge_slope_bound > 0.0;
@@ -385,7 +379,7 @@ impl System {
         y: &mut [f64],
         ln_c: &mut Vec<f64>,
         work: &mut Work,
-    ) -> Outcome {
+    ) -> Convergence {
         work.evaluations = 0;
         let ok = if self.levels.is_empty() {
             self.exponents(a, y, work);
@@ -409,7 +403,7 @@ impl System {
         y: &mut [f64],
         ln_c: &mut Vec<f64>,
         work: &mut Work,
-    ) -> Outcome {
+    ) -> Convergence {
         work.evaluations = 0;
         work.start.clear();
         work.start.extend_from_slice(y);
@@ -441,7 +435,7 @@ impl System {
         // else is left to the searches.
         for (l, level) in self.levels.iter().enumerate() {
             let row = &self.w[l * self.species..(l + 1) * self.species];
-            if matches!(level, Level::Total(_)) && row.iter().any(|w| *w < 0.0) {
+            if matches!(level, Constraint::Total(_)) && row.iter().any(|w| *w < 0.0) {
                 return false;
             }
         }
@@ -463,8 +457,8 @@ impl System {
                     scale += w.abs() * c;
                 }
                 let target = match level {
-                    Level::Charge => ln_targets.get(l).copied().unwrap_or(0.0),
-                    Level::Total(_) => ln_targets.get(l).map_or(1.0, |t| t.exp()),
+                    Constraint::Charge => ln_targets.get(l).copied().unwrap_or(0.0),
+                    Constraint::Total(_) => ln_targets.get(l).map_or(1.0, |t| t.exp()),
                 };
                 g[l] = sum - target;
                 let relative = g[l].abs() / (scale + target.abs());
@@ -539,7 +533,7 @@ impl System {
         ln_c: &mut Vec<f64>,
         work: &mut Work,
         ok: bool,
-    ) -> Outcome {
+    ) -> Convergence {
         self.exponents(a, y, work);
         ln_c.clear();
         ln_c.extend_from_slice(&work.e);
@@ -557,7 +551,7 @@ impl System {
         let mut total_residual = 0.0f64;
         for (l, level) in self.levels.iter().enumerate() {
             match level {
-                Level::Charge => {
+                Constraint::Charge => {
                     let q = ln_targets.get(l).copied().unwrap_or(0.0);
                     let sums = direct
                         .then(|| self.signed_sums(l, &work.c))
@@ -580,7 +574,7 @@ impl System {
                         }
                     };
                 }
-                Level::Total(_) => {
+                Constraint::Total(_) => {
                     let target = ln_targets.get(l).copied().unwrap_or(0.0);
                     let sum = direct
                         .then(|| self.signed_sums(l, &work.c).0)
@@ -598,7 +592,7 @@ impl System {
         }
         let finite = ln_c.iter().all(|x| x.is_finite());
         let converged = ok && finite && charge_residual <= TOLERANCE && total_residual <= TOLERANCE;
-        Outcome {
+        Convergence {
             converged,
             charge_residual: if charge_residual.is_finite() {
                 charge_residual
@@ -613,498 +607,3 @@ impl System {
         }
     }
 }
-
-/// One solved state.
-#[derive(Debug, Clone, PartialEq)]
-#[non_exhaustive]
-pub struct Point {
-    /// bar
-    pub po2: f64,
-    /// kelvin (the temperature the concentrations belong to)
-    pub temperature: f64,
-    /// Natural logs of the concentrations, per formula unit, in model order.
-    pub ln_c: Vec<f64>,
-    pub converged: bool,
-    pub residual: f64,
-    pub total_residual: f64,
-    /// Largest defect site fraction (the dilute-limit indicator).
-    pub site_fraction: f64,
-}
-
-impl Point {
-    /// Concentration of species `s`.
-    pub fn concentration(&self, s: usize) -> f64 {
-        self.ln_c.get(s).map_or(f64::NAN, |l| l.exp())
-    }
-}
-
-/// Offsets a_s at one temperature: a_s = base_s + slope_s · ln pO2.
-struct Offsets {
-    base: Vec<f64>,
-    slope: Vec<f64>,
-}
-
-fn offsets(model: &Model, network: &Network, ln_k: &[f64]) -> Offsets {
-    let oxygen = model.oxygen();
-    let mut base = vec![0.0; network.species];
-    let mut slope = vec![0.0; network.species];
-    for s in 0..network.species {
-        let mut b = 0.0;
-        for (r, &lk) in ln_k.iter().enumerate() {
-            if let Some(k) = network.k.get(s).and_then(|row| row.get(r)) {
-                b += q_to_f64(*k) * lk;
-            }
-        }
-        for (g, gas) in model.gases.iter().enumerate() {
-            let coef = network
-                .q
-                .get(s)
-                .and_then(|row| row.get(g))
-                .map_or(0.0, |q| q_to_f64(*q));
-            if Some(g) == oxygen {
-                slope[s] = coef;
-            } else if let Some(p) = gas.pressure {
-                b += coef * p.ln();
-            }
-        }
-        base[s] = b;
-    }
-    Offsets { base, slope }
-}
-
-fn model_targets(model: &Model, system: &System) -> Vec<f64> {
-    system
-        .levels
-        .iter()
-        .map(|l| match l {
-            Level::Charge => 0.0,
-            Level::Total(t) => model.totals.get(*t).map_or(0.0, |t| t.amount.ln()),
-        })
-        .collect()
-}
-
-/// Extrapolates the previous solutions to a start value at `x`.
-fn predict(history: &[(f64, Vec<f64>)], x: f64, y: &mut [f64]) {
-    match history {
-        [.., (x1, y1), (x2, y2)] if (x2 - x1).abs() > 0.0 => {
-            let t = (x - x2) / (x2 - x1);
-            for ((yi, a), b) in y.iter_mut().zip(y1).zip(y2) {
-                *yi = b + (b - a) * t;
-            }
-        }
-        [.., (_, y2)] => y.copy_from_slice(y2),
-        [] => {}
-    }
-}
-
-fn remember(history: &mut Vec<(f64, Vec<f64>)>, x: f64, y: &[f64], converged: bool) {
-    if !converged {
-        history.clear();
-        return;
-    }
-    if history.len() >= 2 {
-        history.remove(0);
-    }
-    history.push((x, y.to_vec()));
-}
-
-/// Equilibrium at temperature `t` for each pO2 (bar).
-pub fn po2_sweep(model: &Model, t: f64, po2s: &[f64]) -> Result<Vec<Point>, Diagnostic> {
-    let ln_k = model.ln_k(t)?;
-    let system = System::new(&model.network);
-    let off = offsets(model, &model.network, &ln_k);
-    let targets = model_targets(model, &system);
-    let mut y = vec![0.0; system.levels.len()];
-    let mut a = vec![0.0; system.species];
-    let mut ln_c = Vec::with_capacity(system.species);
-    let mut work = Work::default();
-    let mut history: Vec<(f64, Vec<f64>)> = Vec::new();
-    let mut points = Vec::with_capacity(po2s.len());
-    for &p in po2s {
-        let x = p.ln();
-        for (ai, (b, s)) in a.iter_mut().zip(off.base.iter().zip(&off.slope)) {
-            *ai = b + s * x;
-        }
-        predict(&history, x, &mut y);
-        let mut outcome = if history.is_empty() {
-            system.solve(&a, &targets, &mut y, &mut ln_c, &mut work)
-        } else {
-            system.solve_predicted(&a, &targets, &mut y, &mut ln_c, &mut work)
-        };
-        if !outcome.converged {
-            // A cold start from zero before giving up on the point.
-            y.iter_mut().for_each(|v| *v = 0.0);
-            outcome = system.solve(&a, &targets, &mut y, &mut ln_c, &mut work);
-        }
-        remember(&mut history, x, &y, outcome.converged);
-        points.push(Point {
-            po2: p,
-            temperature: t,
-            site_fraction: model.defect_site_fraction(&ln_c),
-            ln_c: ln_c.clone(),
-            converged: outcome.converged,
-            residual: outcome.charge_residual,
-            total_residual: outcome.total_residual,
-        });
-    }
-    Ok(points)
-}
-
-/// Equilibrium at pO2 `po2` (bar) for each temperature (kelvin).
-pub fn temperature_sweep(
-    model: &Model,
-    po2: f64,
-    temperatures: &[f64],
-) -> Result<Vec<Point>, Diagnostic> {
-    let system = System::new(&model.network);
-    let targets = model_targets(model, &system);
-    let mut y = vec![0.0; system.levels.len()];
-    let mut a = vec![0.0; system.species];
-    let mut ln_c = Vec::with_capacity(system.species);
-    let mut work = Work::default();
-    let mut history: Vec<(f64, Vec<f64>)> = Vec::new();
-    let mut points = Vec::with_capacity(temperatures.len());
-    for &t in temperatures {
-        let ln_k = model.ln_k(t)?;
-        let off = offsets(model, &model.network, &ln_k);
-        let x = po2.ln();
-        for (ai, (b, s)) in a.iter_mut().zip(off.base.iter().zip(&off.slope)) {
-            *ai = b + s * x;
-        }
-        predict(&history, 1.0 / t, &mut y);
-        let mut outcome = if history.is_empty() {
-            system.solve(&a, &targets, &mut y, &mut ln_c, &mut work)
-        } else {
-            system.solve_predicted(&a, &targets, &mut y, &mut ln_c, &mut work)
-        };
-        if !outcome.converged {
-            y.iter_mut().for_each(|v| *v = 0.0);
-            outcome = system.solve(&a, &targets, &mut y, &mut ln_c, &mut work);
-        }
-        remember(&mut history, 1.0 / t, &y, outcome.converged);
-        points.push(Point {
-            po2,
-            temperature: t,
-            site_fraction: model.defect_site_fraction(&ln_c),
-            ln_c: ln_c.clone(),
-            converged: outcome.converged,
-            residual: outcome.charge_residual,
-            total_residual: outcome.total_residual,
-        });
-    }
-    Ok(points)
-}
-
-/// The model with ionic defects frozen: only electronic equilibria run, and
-/// every ionic quantity they conserve is held at its equilibrated value.
-///
-/// The charge balance is posed without the bulk of the frozen ionic charge:
-/// each frozen family's total times the charge of its main member is a
-/// constant, so it is taken out, and what remains (electrons, holes, the
-/// charge-state changes of defects) must keep the net charge it had at
-/// equilibrium. Written the plain way, minority carriers would come out of a
-/// difference of two large, nearly equal ionic sums and lose their accuracy.
-pub struct Frozen {
-    pub network: Network,
-    /// Indices (into the model's equilibria) of the electronic equilibria.
-    pub electronic: Vec<usize>,
-    /// Weights of each frozen quantity over the model's species.
-    pub frozen: Vec<Vec<Q>>,
-    /// Effective charges of the model's species.
-    pub charges: Vec<f64>,
-}
-
-impl Frozen {
-    /// The charge row with each family's main charge taken out, given the
-    /// equilibrated log concentrations, and the net charge it must keep.
-    fn charge_balance(&self, ln_c: &[f64]) -> (Vec<f64>, f64) {
-        let mut row = self.charges.clone();
-        for family in &self.frozen {
-            let main = family
-                .iter()
-                .enumerate()
-                .filter(|(_, w)| **w > Q::from_integer(0))
-                .max_by(|a, b| {
-                    let la = ln_c[a.0] + q_to_f64(*a.1).ln();
-                    let lb = ln_c[b.0] + q_to_f64(*b.1).ln();
-                    la.total_cmp(&lb)
-                })
-                .map(|(s, _)| s);
-            if let Some(main) = main {
-                let z = self.charges[main];
-                for (slot, w) in row.iter_mut().zip(family) {
-                    *slot -= z * q_to_f64(*w);
-                }
-            }
-        }
-        let net = row.iter().zip(ln_c).map(|(z, l)| z * l.exp()).sum();
-        (row, net)
-    }
-}
-
-/// Builds the frozen-in network of a model.
-pub fn frozen_network(model: &Model) -> Result<Frozen, Diagnostic> {
-    let electronic: Vec<usize> = model
-        .equilibria
-        .iter()
-        .enumerate()
-        .filter(|(_, e)| e.electronic)
-        .map(|(i, _)| i)
-        .collect();
-    let rows: Vec<Row> = electronic
-        .iter()
-        .map(|&i| {
-            let mut row = model.equilibria[i].row.clone();
-            row.gases.clear();
-            row
-        })
-        .collect();
-    let species = model.species.len();
-    let charges: Vec<i32> = model.species.iter().map(|s| s.charge).collect();
-    // Candidates: one vector per ionic identity, then single species.
-    let mut identities: Vec<String> = Vec::new();
-    for s in &model.species {
-        if let Some(id) = &s.frozen_identity {
-            if !identities.contains(id) {
-                identities.push(id.clone());
-            }
-        }
-    }
-    let mut candidates: Vec<Vec<Q>> = identities
-        .iter()
-        .map(|id| {
-            model
-                .species
-                .iter()
-                .map(|s| {
-                    Q::from_integer(i64::from(s.frozen_identity.as_deref() == Some(id.as_str())))
-                })
-                .collect()
-        })
-        .collect();
-    for s in 0..species {
-        let in_reaction = rows.iter().any(|r| r.species.iter().any(|(i, _)| *i == s));
-        if !in_reaction {
-            candidates.push(
-                (0..species)
-                    .map(|i| Q::from_integer(i64::from(i == s)))
-                    .collect(),
-            );
-        }
-    }
-    // Add candidates until the conserved quantities pin everything down,
-    // skipping any that follow from those already chosen.
-    let mut chosen: Vec<Vec<Q>> = Vec::new();
-    let mut rest = candidates.into_iter();
-    loop {
-        match network::build(species, 0, &rows, &charges, &chosen) {
-            Ok(_) => {
-                // The charge level keeps what the uniform-charge families do
-                // not fix; each point refines the row further (charge_balance).
-                let mut charge: Vec<Q> =
-                    charges.iter().map(|&z| Q::from_integer(z.into())).collect();
-                for family in &chosen {
-                    let members: Vec<usize> = (0..species)
-                        .filter(|&s| family[s] > Q::from_integer(0))
-                        .collect();
-                    let Some(&first) = members.first() else {
-                        continue;
-                    };
-                    let z = charges[first];
-                    if members.iter().all(|&s| charges[s] == z) {
-                        for &s in &members {
-                            charge[s] = Q::from_integer(z.into())
-                                .checked_mul(family[s])
-                                .and_then(|x| charge[s].checked_sub(x))
-                                .map_err(|_| frozen_error())?;
-                        }
-                    }
-                }
-                let net = network::build_general(species, 0, &rows, &charge, &chosen, false)
-                    .map_err(|_| frozen_error())?;
-                return Ok(Frozen {
-                    network: net,
-                    electronic,
-                    frozen: chosen,
-                    charges: charges.iter().map(|&z| f64::from(z)).collect(),
-                });
-            }
-            Err(network::NetworkError::Underdetermined { .. }) => {}
-            Err(_) if !chosen.is_empty() => {
-                chosen.pop();
-            }
-            Err(_) => break,
-        }
-        match rest.next() {
-            Some(candidate) => chosen.push(candidate),
-            None => break,
-        }
-    }
-    Err(frozen_error())
-}
-
-fn frozen_error() -> Diagnostic {
-    Diagnostic::new(
-        Code::Underdetermined,
-        0..0,
-        "cannot tell which quantities stay fixed when the ionic defects are frozen",
-    )
-    .with_help("check that every ionic defect's charge states are linked by electronic equilibria")
-}
-
-/// Frozen-in states: equilibrate at `t_high` and each pO2, freeze the ionic
-/// defects, re-equilibrate electrons and holes at each of `t_low`.
-/// Returns, per pO2 and low temperature, the low-temperature point.
-pub fn frozen_sweep(
-    model: &Model,
-    t_high: f64,
-    po2s: &[f64],
-    t_lows: &[f64],
-) -> Result<Vec<Point>, Diagnostic> {
-    let high = po2_sweep(model, t_high, po2s)?;
-    let frozen = frozen_network(model)?;
-    let plain = System::new(&frozen.network);
-    let system = &plain;
-    let mut points = Vec::with_capacity(po2s.len() * t_lows.len());
-    let mut work = Work::default();
-    let mut ln_c = Vec::new();
-    let mut y = vec![0.0; system.levels.len()];
-    let mut history: Vec<(f64, Vec<f64>)> = Vec::new();
-    let mut per_t: Vec<(Vec<f64>, Vec<f64>)> = Vec::with_capacity(t_lows.len());
-    for &t in t_lows {
-        let all = model.ln_k(t);
-        let ln_k: Vec<f64> = match all {
-            Ok(v) => frozen
-                .electronic
-                .iter()
-                .map(|&i| v.get(i).copied().unwrap_or(0.0))
-                .collect(),
-            Err(d) => {
-                // Only the electronic equilibria must be known at the low temperature.
-                let mut values = Vec::new();
-                for &i in &frozen.electronic {
-                    let e = &model.equilibria[i];
-                    match e.thermo.map(|thermo| thermo.ln_k(t)) {
-                        Some(Ok(v)) => values.push(v),
-                        _ => return Err(d),
-                    }
-                }
-                values
-            }
-        };
-        let base: Vec<f64> = (0..system.species)
-            .map(|s| {
-                ln_k.iter()
-                    .enumerate()
-                    .map(|(r, lk)| frozen.network.k[s].get(r).map_or(0.0, |k| q_to_f64(*k)) * lk)
-                    .sum()
-            })
-            .collect();
-        per_t.push((base, ln_k));
-    }
-    for hp in &high {
-        if !hp.converged {
-            for &t in t_lows {
-                points.push(Point {
-                    po2: hp.po2,
-                    temperature: t,
-                    ln_c: hp.ln_c.clone(),
-                    converged: false,
-                    residual: hp.residual,
-                    total_residual: hp.total_residual,
-                    site_fraction: hp.site_fraction,
-                });
-            }
-            continue;
-        }
-        let (row, net_charge) = frozen.charge_balance(&hp.ln_c);
-        let system = plain.with_charge_row(&row);
-        // Targets: the frozen quantities at the high-temperature state.
-        let targets: Vec<f64> = system
-            .levels
-            .iter()
-            .map(|l| match l {
-                // The net charge of what stays in the balance, as it was.
-                Level::Charge => net_charge,
-                Level::Total(j) => {
-                    let weights = &frozen.frozen[*j];
-                    let max = weights
-                        .iter()
-                        .zip(&hp.ln_c)
-                        .filter(|(w, _)| **w > Q::from_integer(0))
-                        .map(|(w, l)| l + q_to_f64(*w).ln())
-                        .fold(f64::NEG_INFINITY, f64::max);
-                    let sum: f64 = weights
-                        .iter()
-                        .zip(&hp.ln_c)
-                        .filter(|(w, _)| **w > Q::from_integer(0))
-                        .map(|(w, l)| (l + q_to_f64(*w).ln() - max).exp())
-                        .sum();
-                    max + sum.ln()
-                }
-            })
-            .collect();
-        for (ti, &t) in t_lows.iter().enumerate() {
-            let (base, _) = &per_t[ti];
-            let key = if t_lows.len() > 1 {
-                1.0 / t
-            } else {
-                hp.po2.ln()
-            };
-            predict(&history, key, &mut y);
-            let mut outcome = system.solve(base, &targets, &mut y, &mut ln_c, &mut work);
-            if !outcome.converged {
-                y.iter_mut().for_each(|v| *v = 0.0);
-                outcome = system.solve(base, &targets, &mut y, &mut ln_c, &mut work);
-            }
-            remember(&mut history, key, &y, outcome.converged);
-            points.push(Point {
-                po2: hp.po2,
-                temperature: t,
-                site_fraction: model.defect_site_fraction(&ln_c),
-                ln_c: ln_c.clone(),
-                converged: outcome.converged,
-                residual: outcome.charge_residual,
-                total_residual: outcome.total_residual,
-            });
-        }
-        if t_lows.len() > 1 {
-            history.clear();
-        }
-    }
-    Ok(points)
-}
-
-/// `n` values evenly spaced in log10 from `low` to `high` (inclusive).
-pub fn log_grid(low: f64, high: f64, n: usize) -> Vec<f64> {
-    match n {
-        0 => Vec::new(),
-        1 => vec![low],
-        _ => {
-            let (a, b) = (low.log10(), high.log10());
-            (0..n)
-                .map(|i| {
-                    let f = i as f64 / (n - 1) as f64;
-                    10f64.powf(a + (b - a) * f)
-                })
-                .collect()
-        }
-    }
-}
-
-/// `n` temperatures evenly spaced in 1/T from `low` to `high` (inclusive), ascending in T.
-pub fn inverse_grid(low: f64, high: f64, n: usize) -> Vec<f64> {
-    match n {
-        0 => Vec::new(),
-        1 => vec![low],
-        _ => (0..n)
-            .map(|i| {
-                let f = i as f64 / (n - 1) as f64;
-                1.0 / (1.0 / low + (1.0 / high - 1.0 / low) * f)
-            })
-            .collect(),
-    }
-}
-
-#[cfg(test)]
-mod tests;
