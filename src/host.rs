@@ -29,7 +29,7 @@ pub struct Sublattice {
 impl Sublattice {
     /// `Fe:A` or `O`.
     pub fn name(&self) -> String {
-        let symbol = elements::by_z(self.element).map_or("?", |e| e.symbol);
+        let symbol = elements::symbol(self.element);
         match &self.label {
             Some(label) => format!("{symbol}:{label}"),
             None => symbol.to_string(),
@@ -105,7 +105,7 @@ impl Host {
             )]
         })?;
         if let Some((z, _)) = formula.atoms.iter().find(|(_, n)| *n <= Q::from_integer(0)) {
-            return Err(vec![Diagnostic::new(Code::HostFormula, formula_span, format!("{} has a count of zero in the host formula", symbol(*z)))
+            return Err(vec![Diagnostic::new(Code::HostFormula, formula_span, format!("{} has a count of zero in the host formula", elements::symbol(*z)))
                 .with_help("every element of a host occurs at least once per formula unit; drop it or give its count")]);
         }
         let formula_text = source[formula_span.clone()].to_string();
@@ -175,19 +175,11 @@ impl Host {
                 out,
                 "\n  {:<6} formal charge {:>5}  sites {}",
                 s.name(),
-                signed(s.charge),
+                number::signed(s.charge),
                 number::to_plain(s.count)
             );
         }
         out
-    }
-}
-
-fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        number::to_plain(q)
     }
 }
 
@@ -227,10 +219,6 @@ impl WithSpan for Diagnostic {
     }
 }
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 /// Infers formal charges: anions at their usual state, cations from the
 /// combinations of their common states that make the formula neutral.
 fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnostic> {
@@ -239,7 +227,7 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
         let parts: Vec<String> = formula
             .atoms
             .iter()
-            .map(|(z, _)| format!("{} <charge>", symbol(*z)))
+            .map(|(z, _)| format!("{} <charge>", elements::symbol(*z)))
             .collect();
         example.push_str(&parts.join(", "));
         example.push('`');
@@ -257,7 +245,7 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
     let mut cations: Vec<(u8, Q)> = Vec::new();
     let mut charges: Vec<(u8, Q)> = Vec::new();
     for (z, n) in &formula.atoms {
-        match ANIONS.iter().find(|(s, _)| *s == symbol(*z)) {
+        match ANIONS.iter().find(|(s, _)| *s == elements::symbol(*z)) {
             Some((_, state)) => {
                 anion_charge = Q::from_integer(*state)
                     .checked_mul(*n)
@@ -347,7 +335,7 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
                     .map_err(|o| too_large(0..0, "the average cation charge", o))?;
                 format!(
                     "`{text}` needs {} at an average charge of {}, which is not one of its common oxidation states",
-                    symbol(cations[0].0),
+                    elements::symbol(cations[0].0),
                     number::to_plain(average)
                 )
             } else {
@@ -365,7 +353,7 @@ fn infer_sites(formula: &Formula, text: &str) -> Result<Vec<Sublattice>, Diagnos
                     cations
                         .iter()
                         .zip(states)
-                        .map(|((z, _), s)| format!("{}{:+}", symbol(*z), s))
+                        .map(|((z, _), s)| format!("{}{:+}", elements::symbol(*z), s))
                         .collect::<Vec<_>>()
                         .join(" ")
                 })
@@ -498,9 +486,12 @@ fn explicit_sites(
                 Diagnostic::new(
                     Code::HostFormula,
                     formula_span.clone(),
-                    format!("{} has no site declared", symbol(*z)),
+                    format!("{} has no site declared", elements::symbol(*z)),
                 )
-                .with_help(format!("add `{} <charge>` to the sites", symbol(*z))),
+                .with_help(format!(
+                    "add `{} <charge>` to the sites",
+                    elements::symbol(*z)
+                )),
             );
             continue;
         }
@@ -511,7 +502,7 @@ fn explicit_sites(
                     of[0].1.clone(),
                     format!(
                         "{} sits on {} sublattices; give each a count",
-                        symbol(*z),
+                        elements::symbol(*z),
                         of.len()
                     ),
                 )
@@ -531,13 +522,13 @@ fn explicit_sites(
                     of[0].1.start..last,
                     format!(
                         "the {} site counts {} add up to more than Lacuna holds exactly (about 9.2e18)",
-                        symbol(*z),
+                        elements::symbol(*z),
                         counts.join(" + ")
                     ),
                 )
                 .with_help(format!(
                     "the counts of a sublattice are sites per formula unit; make the {} counts add up to {}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     number::to_plain(*n)
                 )),
             );
@@ -549,7 +540,7 @@ fn explicit_sites(
                 of[0].1.clone(),
                 format!(
                     "the {} sites add up to {} per formula unit, the formula has {}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     number::to_plain(sum),
                     number::to_plain(*n)
                 ),
@@ -561,7 +552,7 @@ fn explicit_sites(
             diags.push(Diagnostic::new(
                 Code::HostFormula,
                 of[0].1.clone(),
-                format!("{} sublattices need distinct labels", symbol(*z)),
+                format!("{} sublattices need distinct labels", elements::symbol(*z)),
             ));
         }
     }
@@ -586,7 +577,7 @@ fn explicit_sites(
                 offset..self::byte_at(offset, decl.len()),
                 format!(
                     "the declared charges leave the formula unit with charge {}",
-                    number::to_plain(net)
+                    number::minus_text(net)
                 ),
             )
             .with_help("formal charges times site counts must add up to zero"),
@@ -657,6 +648,17 @@ mod tests {
             vec![row("Na", "1", "1"), row("Cl", "-1", "1")]
         );
         assert_eq!(charges("Al"), vec![row("Al", "0", "1")]);
+    }
+
+    #[test]
+    fn a_charged_formula_unit_is_named_with_a_true_minus() {
+        // Zr at +3 with two O at -2: 3 - 4 = -1 per formula unit
+        // (source: common practice, formal charges times site counts).
+        let err = Host::from_spec("ZrO2 sites Zr +3, O -2").unwrap_err();
+        assert_eq!(
+            err[0].message,
+            "the declared charges leave the formula unit with charge \u{2212}1"
+        );
     }
 
     #[test]

@@ -10,7 +10,7 @@
 //! |---|---|---|
 //! | check reactions in text or a file | [`check_text`], [`check_file`] | [`Checked`] |
 //! | read one reaction | [`parse_reaction`] | [`notation::Reaction`] |
-//! | balance a reaction | [`balance()`] | [`balance::Outcome`] |
+//! | balance a reaction | [`balance()`] | [`balance::Balancing`] |
 //! | incorporate a dopant | [`dope`] | [`generate::dope::Report`] |
 //! | the intrinsic reactions of a host | [`native`] | [`generate::native::Catalogue`] |
 //! | mass-action laws of a file | [`laws`] | [`model::laws::DocumentLaws`] |
@@ -194,7 +194,7 @@ pub fn check_file(path: &std::path::Path, host: Option<Host>) -> std::io::Result
 /// let b = &outcome.reactions[0].conventional;
 /// assert_eq!(lacuna::notation::render_reaction(b, lacuna::notation::Style::Ascii), "O_Ox -> V_O.. + 2 e' + 1/2 O2(g)");
 /// ```
-pub fn balance(reaction: &Reaction, host: Option<&Host>) -> balance::Outcome {
+pub fn balance(reaction: &Reaction, host: Option<&Host>) -> balance::Balancing {
     balance::balance(
         reaction,
         host,

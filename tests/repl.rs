@@ -43,6 +43,11 @@ fn typed_reactions_are_checked_against_the_host() {
     let (out, code) = output(dir.path(), &[], &input);
     assert_eq!(code, 0, "{out}");
     assert!(out.contains("Zr     formal charge    +4  sites 1"), "{out}");
+    // A true minus sign (U+2212) in text for people, as in every other table.
+    assert!(
+        out.contains("O      formal charge    \u{2212}2  sites 2"),
+        "{out}"
+    );
     assert!(
         out.contains("[1] ✓ balanced  O_O× → V_O•• + 2 e′ + ½ O2(g)"),
         "{out}"

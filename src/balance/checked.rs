@@ -2,11 +2,11 @@
 //! `/balance` run it.
 //!
 //! In: a parsed reaction, the host and the problems already found in its
-//! text. Out: the balancer's `Outcome` with every finding that still stands
+//! text. Out: the balancer's `Balancing` with every finding that still stands
 //! (the checker's plausibility findings; its balance failures are what the
 //! balancer answers). Writing it for people is `crate::report::balance`.
 
-use super::{Options, Outcome, Status, balance};
+use super::{Balancing, Options, Status, balance};
 use crate::base::diagnostic::{Code, Diagnostic, Severity};
 use crate::check::check_reaction;
 use crate::host::Host;
@@ -23,7 +23,7 @@ pub fn check_and_balance(
     keep_written: bool,
     found: Vec<Diagnostic>,
     no_host_help: &str,
-) -> (Outcome, Vec<Diagnostic>) {
+) -> (Balancing, Vec<Diagnostic>) {
     let mut diagnostics = found;
     let verdict = check_reaction(reaction, host);
     for d in verdict.diagnostics {
@@ -43,7 +43,7 @@ pub fn check_and_balance(
         }
     }
     if diagnostics.iter().any(Diagnostic::is_error) {
-        let outcome = Outcome {
+        let outcome = Balancing {
             status: Status::None,
             reactions: Vec::new(),
             diagnostics: Vec::new(),

@@ -8,9 +8,10 @@
 
 use super::build::{Builder, gas, term};
 use super::matrix::{TooLarge, nullspace};
-use super::{Law, Status, System, Unknown, orient, signed, symbol};
+use super::{Law, Status, System, Unknown, orient};
 use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::number::{self, Q};
+use crate::base::elements::symbol;
+use crate::base::number::{self, Q, signed};
 use crate::host::Sublattice;
 use crate::notation::{
     Entity, Formula, MarkStyle, Occupant, Site, Species, Style, VacancySpelling, render_reaction,

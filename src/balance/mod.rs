@@ -1,7 +1,7 @@
 //! The balancer: the user lists the species, Lacuna finds the coefficients.
 //!
 //! In: a parsed `Reaction` (its coefficients are ignored, or kept where the
-//! user wrote them) and the host. Out: an `Outcome` that is *unique* (one
+//! user wrote them) and the host. Out: a `Balancing` that is *unique* (one
 //! balanced reaction, smallest integers), *several* (a basis of independent
 //! balanced reactions and what makes the coefficients free) or *none* (which
 //! conservation law cannot be met and what kind of species would fix it).
@@ -20,7 +20,6 @@ pub mod hint;
 mod matrix;
 
 use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::elements;
 use crate::base::number::{self, Q};
 use crate::host::{Host, SiteLookup};
 use crate::notation::{
@@ -122,7 +121,7 @@ pub struct Balanced {
 
 /// The balancer's answer.
 #[derive(Debug, Clone)]
-pub struct Outcome {
+pub struct Balancing {
     pub status: Status,
     /// One reaction (unique), a basis (several) or none.
     pub reactions: Vec<Balanced>,
@@ -132,7 +131,7 @@ pub struct Outcome {
 
 /// Balances the species of `reaction` against `host` (mass and charge only
 /// when there is no host).
-pub fn balance(reaction: &Reaction, host: Option<&Host>, options: Options) -> Outcome {
+pub fn balance(reaction: &Reaction, host: Option<&Host>, options: Options) -> Balancing {
     let mut system = match System::build(reaction, host) {
         Ok(s) => s,
         Err(diagnostics) => return none(diagnostics),
@@ -205,8 +204,8 @@ pub fn balanced_text(reaction: &Reaction, host: Option<&Host>) -> Option<String>
     balanced_form(reaction, host).map(|r| render_reaction(&r, Style::Unicode))
 }
 
-fn none(diagnostics: Vec<Diagnostic>) -> Outcome {
-    Outcome {
+fn none(diagnostics: Vec<Diagnostic>) -> Balancing {
+    Balancing {
         status: Status::None,
         reactions: Vec::new(),
         diagnostics,
@@ -266,21 +265,6 @@ struct System<'r> {
     matrix: Matrix,
     /// Explain a failure (off when trying out additions, which must not recurse).
     explain: bool,
-}
-
-/// A signed exact number with a true minus sign: `+2`, `−1/2`, `0`.
-fn signed(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(q).trim_start_matches('-'))
-    } else {
-        "0".into()
-    }
-}
-
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
 }
 
 /// The span of what a term multiplies (the term without its coefficient).
@@ -560,7 +544,7 @@ impl<'r> System<'r> {
     }
 
     /// Every coefficient unknown.
-    fn solve_free(&self) -> Result<Outcome, TooLarge> {
+    fn solve_free(&self) -> Result<Balancing, TooLarge> {
         let basis = nullspace(&self.matrix)?;
         match basis.len() {
             0 if self.explain => Ok(none(self.explain_none()?)),
@@ -587,7 +571,7 @@ impl<'r> System<'r> {
 
     /// Some coefficients fixed as written: homogenise with a scale column
     /// `t` and rows `den·x_j − num·t = 0`; solutions are those with t = 1.
-    fn solve_fixed(&self, fixed: &[(usize, Q)]) -> Result<Outcome, TooLarge> {
+    fn solve_fixed(&self, fixed: &[(usize, Q)]) -> Result<Balancing, TooLarge> {
         let n = self.n();
         let mut rows: Vec<Vec<i64>> = self
             .matrix
@@ -665,7 +649,7 @@ impl<'r> System<'r> {
 
     /// One balanced reaction; `scalable` when no coefficient was fixed, so
     /// the conventional form may rescale it.
-    fn unique(&self, v: &[Q], scalable: bool) -> Outcome {
+    fn unique(&self, v: &[Q], scalable: bool) -> Balancing {
         let mut diagnostics = Vec::new();
         for (u, c) in self.unknowns.iter().zip(v) {
             // Rendered only for a message: most coefficients need none.
@@ -678,7 +662,7 @@ impl<'r> System<'r> {
                         format!(
                             "{} would need the coefficient {} on the {} side: it belongs on the {} side",
                             shown(),
-                            signed(*c),
+                            number::signed(*c),
                             u.side.as_str(),
                             u.side.other().as_str()
                         ),
@@ -696,14 +680,14 @@ impl<'r> System<'r> {
                 );
             }
         }
-        Outcome {
+        Balancing {
             status: Status::Unique,
             reactions: vec![self.balanced(v, scalable)],
             diagnostics,
         }
     }
 
-    fn several(&self, reactions: Vec<Vec<Q>>, fixed: Option<&[(usize, Q)]>) -> Outcome {
+    fn several(&self, reactions: Vec<Vec<Q>>, fixed: Option<&[(usize, Q)]>) -> Balancing {
         // With fixed coefficients the list starts with the particular solution.
         let k = reactions.len().saturating_sub(usize::from(fixed.is_some()));
         let rank = rank(&self.matrix).unwrap_or(0);
@@ -761,7 +745,7 @@ impl<'r> System<'r> {
         let diagnostic =
             Diagnostic::new(Code::SeveralBalanced, self.reaction.span.clone(), message)
                 .with_help(help);
-        Outcome {
+        Balancing {
             status: Status::Several,
             reactions: reactions
                 .iter()

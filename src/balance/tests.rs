@@ -14,7 +14,7 @@ fn host(spec: &str) -> Host {
     Host::from_spec(spec).unwrap_or_else(|d| panic!("{spec}: {d:?}"))
 }
 
-fn run(host_spec: &str, text: &str, keep_written: bool) -> Outcome {
+fn run(host_spec: &str, text: &str, keep_written: bool) -> Balancing {
     let host = host(host_spec);
     balance(
         &parse(text),

@@ -1,7 +1,8 @@
 //! Foundations every stage shares: exact numbers, the one diagnostic type,
-//! element data and exact linear algebra.
+//! element data, exact linear algebra and the column widths of text tables.
 
 pub mod diagnostic;
 pub mod elements;
 pub mod linalg;
 pub mod number;
+pub mod text;

@@ -495,6 +495,26 @@ pub fn to_plain(q: Q) -> String {
     }
 }
 
+/// Writes `q` for people: `3`, `−1/2`, `0`, with a true minus sign (U+2212).
+/// Machine output (JSON, CSV, reaction text) keeps [`to_plain`]'s ASCII `-`.
+pub fn minus_text(q: Q) -> String {
+    let plain = to_plain(q);
+    match plain.strip_prefix('-') {
+        Some(magnitude) => format!("−{magnitude}"),
+        None => plain,
+    }
+}
+
+/// Writes `q` for people with its sign always shown: `+2`, `−1/2`, `0`
+/// (a true minus sign, U+2212). For charges, changes and slopes.
+pub fn signed(q: Q) -> String {
+    if q.is_positive() {
+        format!("+{}", to_plain(q))
+    } else {
+        minus_text(q)
+    }
+}
+
 /// Writes a coefficient as a reader expects it in a reaction: nothing for 1,
 /// `½` style glyphs for the common halves and thirds when `unicode` is set.
 pub fn coefficient_text(q: Q, unicode: bool) -> String {
@@ -590,6 +610,22 @@ impl fmt::Display for NumberError {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn human_text_uses_a_true_minus_sign() {
+        // source: Unicode Standard, U+2212 MINUS SIGN (the typographic minus
+        // for people; ASCII hyphen-minus stays in machine output).
+        assert_eq!(signed(Q::from_integer(2)), "+2");
+        assert_eq!(signed(Q::new(-1, 2)), "\u{2212}1/2");
+        assert_eq!(signed(Q::from_integer(0)), "0");
+        assert_eq!(minus_text(Q::from_integer(2)), "2");
+        assert_eq!(minus_text(Q::new(-3, 4)), "\u{2212}3/4");
+        assert_eq!(
+            minus_text(Q::from_integer(i64::MIN)),
+            "\u{2212}9223372036854775808"
+        );
+        assert_eq!(to_plain(Q::new(-1, 2)), "-1/2");
+    }
 
     #[test]
     fn parses_exact_forms() {

@@ -184,25 +184,6 @@ fn exact_text(q: Result<Q, number::Overflow>, text: fn(Q) -> String) -> String {
     q.map_or_else(|_| "beyond the exact range".to_string(), text)
 }
 
-fn signed_text(q: Q) -> String {
-    let Ok(plain) = q.checked_abs().map(number::to_plain) else {
-        return format!("−{}", number::to_plain(q).trim_start_matches('-'));
-    };
-    if q < Q::from_integer(0) {
-        format!("−{plain}")
-    } else {
-        plain
-    }
-}
-
-fn change_text(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        signed_text(q)
-    }
-}
-
 /// A P107 at `span`: `what` left the exact range.
 fn overflow_at(span: Span, what: &str) -> Diagnostic {
     Diagnostic::new(
@@ -211,10 +192,6 @@ fn overflow_at(span: Span, what: &str) -> Diagnostic {
         format!("{what} is beyond the exact range (about 9.2e18)"),
     )
     .with_help("use smaller numbers; charges and counts are exact, so they cannot be approximated")
-}
-
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
 }
 
 struct Checker<'h> {
@@ -248,8 +225,8 @@ impl Checker<'_> {
                         self.push(
                             Diagnostic::new(Code::AssociateCharge, a.span.clone(), format!(
                                 "the associate is marked {} but its parts add up to {}",
-                                signed_text(Q::from_integer(i64::from(declared))),
-                                signed_text(parts)
+                                number::minus_text(Q::from_integer(i64::from(declared))),
+                                number::minus_text(parts)
                             ))
                             .with_help("the net charge of an associate is the sum of its parts' effective charges"),
                         );
@@ -275,8 +252,8 @@ impl Checker<'_> {
                             s.span.clone(),
                             format!(
                                 "{name} has effective charge {}, not {}",
-                                signed_text(Q::from_integer(want.into())),
-                                signed_text(Q::from_integer(s.charge.into()))
+                                number::minus_text(Q::from_integer(want.into())),
+                                number::minus_text(Q::from_integer(s.charge.into()))
                             ),
                         )
                         .with_help(format!("write `{mark}`")),
@@ -357,7 +334,7 @@ impl Checker<'_> {
                         site_span,
                         format!(
                             "{} has {} sublattices in {}; name one",
-                            symbol(element),
+                            elements::symbol(element),
                             names.len(),
                             host.formula_text
                         ),
@@ -369,8 +346,8 @@ impl Checker<'_> {
             SiteLookup::Missing => {
                 self.sites_known = false;
                 let written = label.map_or_else(
-                    || symbol(element).to_string(),
-                    |l| format!("{}:{l}", symbol(element)),
+                    || elements::symbol(element).to_string(),
+                    |l| format!("{}:{l}", elements::symbol(element)),
                 );
                 let names: Vec<String> = host
                     .sublattices
@@ -422,7 +399,7 @@ impl Checker<'_> {
         self.push(
             Diagnostic::new(Code::VacancyCharge, s.span.clone(), format!(
                 "{shown} has effective charge {}, but a vacancy on a site of formal charge {} ranges from 0 to {}",
-                signed_text(q), signed_text(site_charge), signed_text(full)
+                number::minus_text(q), number::minus_text(site_charge), number::minus_text(full)
             ))
             .with_label(format!("write {zero_text} … {fixed_text}"))
             .with_help(format!("the fully ionised vacancy is {fixed_text}")),
@@ -443,7 +420,7 @@ impl Checker<'_> {
                 format!(
                     "{} implies an impossible charge of {}",
                     render_species(s, Style::Unicode),
-                    signed_text(real)
+                    number::minus_text(real)
                 ),
             ));
             return;
@@ -612,7 +589,7 @@ impl Checker<'_> {
             .map(|(z, l, r)| {
                 format!(
                     "{} left {}, right {}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     number::to_plain(*l),
                     number::to_plain(*r)
                 )
@@ -633,8 +610,8 @@ impl Checker<'_> {
         let (left, right) = table.charge;
         let message = format!(
             "charge does not balance: left {}, right {}",
-            signed_text(left),
-            signed_text(right)
+            number::minus_text(left),
+            number::minus_text(right)
         );
         let mut diagnostic = Diagnostic::new(Code::ChargeBalance, reaction.span.clone(), message);
         // Point at one species whose charge mark, corrected, would balance the
@@ -761,7 +738,7 @@ impl Checker<'_> {
                 format!(
                     "{} {}",
                     site_name(host, *i),
-                    exact_text(number::sub(*r, *l), change_text)
+                    exact_text(number::sub(*r, *l), number::signed)
                 )
             })
             .collect();
@@ -781,12 +758,16 @@ impl Checker<'_> {
                 .filter(|(n, ..)| n != first)
                 .map(|(n, c, ..)| {
                     let need = lambda.and_then(|x| number::mul(x, *c));
-                    format!("{} {}", site_name(host, *n), exact_text(need, change_text))
+                    format!(
+                        "{} {}",
+                        site_name(host, *n),
+                        exact_text(need, number::signed)
+                    )
                 })
                 .collect();
             message.push_str(&format!(
                 " (for {name} {} the host needs {})",
-                exact_text(number::sub(*r, *l), change_text),
+                exact_text(number::sub(*r, *l), number::signed),
                 needed.join(", ")
             ));
         }

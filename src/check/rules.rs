@@ -25,35 +25,35 @@ pub const CONFIG_FILE: &str = "lacuna.toml";
 
 /// What to do with a rule's diagnostics.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Level {
+pub enum RuleLevel {
     Allow,
     Warn,
     Deny,
 }
 
-impl Level {
-    pub fn parse(text: &str) -> Option<Level> {
+impl RuleLevel {
+    pub fn parse(text: &str) -> Option<RuleLevel> {
         match text.to_ascii_lowercase().as_str() {
-            "allow" | "off" => Some(Level::Allow),
-            "warn" | "warning" => Some(Level::Warn),
-            "deny" | "error" => Some(Level::Deny),
+            "allow" | "off" => Some(RuleLevel::Allow),
+            "warn" | "warning" => Some(RuleLevel::Warn),
+            "deny" | "error" => Some(RuleLevel::Deny),
             _ => None,
         }
     }
 }
 
-/// Levels per code, plus the blanket "warnings are errors" switch.
+/// A rule level per code, plus the blanket "warnings are errors" switch.
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
-pub struct Levels {
-    pub by_code: HashMap<Code, Level>,
+pub struct RuleLevels {
+    pub by_code: HashMap<Code, RuleLevel>,
     pub deny_warnings: bool,
 }
 
-impl Levels {
+impl RuleLevels {
     /// Sets a level from a command-line or config name: a code (`L501`), a
     /// rule name (`mixed-marks`) or `warnings` (for deny only).
-    pub fn set(&mut self, name: &str, level: Level) -> Result<(), String> {
-        if name.eq_ignore_ascii_case("warnings") && level == Level::Deny {
+    pub fn set(&mut self, name: &str, level: RuleLevel) -> Result<(), String> {
+        if name.eq_ignore_ascii_case("warnings") && level == RuleLevel::Deny {
             self.deny_warnings = true;
             return Ok(());
         }
@@ -83,9 +83,9 @@ impl Levels {
                 return false;
             }
             match self.by_code.get(&d.code) {
-                Some(Level::Allow) => return false,
-                Some(Level::Deny) => d.severity = Severity::Error,
-                Some(Level::Warn) => d.severity = Severity::Warning,
+                Some(RuleLevel::Allow) => return false,
+                Some(RuleLevel::Deny) => d.severity = Severity::Error,
+                Some(RuleLevel::Warn) => d.severity = Severity::Warning,
                 None => {}
             }
             if self.deny_warnings && d.severity == Severity::Warning {
@@ -96,11 +96,11 @@ impl Levels {
     }
 
     /// Reads `lacuna.toml`: a `[rules]` table of `name-or-code = "allow|warn|deny"`.
-    pub fn from_config(text: &str, path: &Path) -> Result<Levels, String> {
+    pub fn from_config(text: &str, path: &Path) -> Result<RuleLevels, String> {
         let value: toml::Table = text
             .parse()
             .map_err(|e: toml::de::Error| format!("{}: {e}", path.display()))?;
-        let mut levels = Levels::default();
+        let mut levels = RuleLevels::default();
         for (key, item) in &value {
             if key != "rules" {
                 return Err(format!(
@@ -112,7 +112,7 @@ impl Levels {
                 return Err(format!("{}: `rules` must be a table", path.display()));
             };
             for (name, level) in rules {
-                let level = level.as_str().and_then(Level::parse).ok_or_else(|| {
+                let level = level.as_str().and_then(RuleLevel::parse).ok_or_else(|| {
                     format!(
                         "{}: rule `{name}` needs \"allow\", \"warn\" or \"deny\"",
                         path.display()
@@ -986,11 +986,13 @@ mod tests {
 
     #[test]
     fn levels_and_line_suppressions() {
-        let mut levels = Levels::default();
-        levels.set("mixed-marks", Level::Deny).expect("known rule");
-        levels.set("warnings", Level::Deny).expect("blanket");
-        levels.set("V407", Level::Allow).expect("code");
-        assert!(levels.set("no-such-rule", Level::Warn).is_err());
+        let mut levels = RuleLevels::default();
+        levels
+            .set("mixed-marks", RuleLevel::Deny)
+            .expect("known rule");
+        levels.set("warnings", RuleLevel::Deny).expect("blanket");
+        levels.set("V407", RuleLevel::Allow).expect("code");
+        assert!(levels.set("no-such-rule", RuleLevel::Warn).is_err());
         let mut ds = vec![
             Diagnostic::new(Code::MixedMarks, 0..1, "m"),
             Diagnostic::new(Code::SameOnBothSides, 0..1, "s"),
@@ -1007,17 +1009,22 @@ mod tests {
 
     #[test]
     fn config_files() {
-        let levels = Levels::from_config(
+        let levels = RuleLevels::from_config(
             "[rules]\nL501 = \"allow\"\nrepeated-reaction = \"deny\"\n",
             Path::new("lacuna.toml"),
         )
         .expect("valid");
-        assert_eq!(levels.by_code.get(&Code::MixedMarks), Some(&Level::Allow));
+        assert_eq!(
+            levels.by_code.get(&Code::MixedMarks),
+            Some(&RuleLevel::Allow)
+        );
         assert_eq!(
             levels.by_code.get(&Code::RepeatedReaction),
-            Some(&Level::Deny)
+            Some(&RuleLevel::Deny)
         );
-        assert!(Levels::from_config("[rules]\nL501 = \"sometimes\"\n", Path::new("x")).is_err());
-        assert!(Levels::from_config("[other]\n", Path::new("x")).is_err());
+        assert!(
+            RuleLevels::from_config("[rules]\nL501 = \"sometimes\"\n", Path::new("x")).is_err()
+        );
+        assert!(RuleLevels::from_config("[other]\n", Path::new("x")).is_err());
     }
 }

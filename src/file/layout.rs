@@ -8,6 +8,7 @@
 
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number::{self, Q};
+use crate::base::text::{pad, width};
 use crate::file::reader::{Line, classify, comment, numbered_lines, read_reaction};
 use crate::notation::{Arrow, Entity, Reaction, Style, Term, render_term};
 
@@ -165,7 +166,7 @@ fn align(pieces: Vec<Piece>, final_newline: bool) -> String {
         let label_width = block
             .iter()
             .map(|p| match p {
-                Piece::Reaction { label: Some(l), .. } => l.chars().count() + 1,
+                Piece::Reaction { label: Some(l), .. } => width(l) + 1,
                 _ => 0,
             })
             .max()
@@ -173,7 +174,7 @@ fn align(pieces: Vec<Piece>, final_newline: bool) -> String {
         let left_width = block
             .iter()
             .map(|p| match p {
-                Piece::Reaction { left, .. } => left.chars().count(),
+                Piece::Reaction { left, .. } => width(left),
                 _ => 0,
             })
             .max()
@@ -218,15 +219,6 @@ fn align(pieces: Vec<Piece>, final_newline: bool) -> String {
         out.pop();
     }
     out
-}
-
-fn pad(text: &str, width: usize) -> String {
-    let len = text.chars().count();
-    if len >= width {
-        text.to_string()
-    } else {
-        format!("{text}{}", " ".repeat(width - len))
-    }
 }
 
 #[cfg(test)]

@@ -31,6 +31,7 @@ pub mod segment;
 #[cfg(test)]
 mod tests;
 
+use crate::base::number;
 use arrhenius::{ArrheniusFit, ArrheniusForm, ComponentPoint, Enthalpy, KJ_PER_MOL_PER_EV};
 use decompose::{DecomposeOptions, Decomposition, Exponents};
 use linalg::critical_value;
@@ -490,14 +491,14 @@ fn analyse_isotherm(
                         .dominant
                         .as_ref()
                         .is_some_and(|(_, share)| *share < DOMINANT_SHARE);
-                    if seg.mixed && seg.matching.verdict != regimes::Verdict::NoMatch {
+                    if seg.mixed && seg.matching.verdict != regimes::SlopeVerdict::NoMatch {
                         notes.push(format!(
                             "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
                             iso.label,
                             sci(seg.po2_min_bar),
                             sci(seg.po2_max_bar),
                             seg.slope,
-                            regimes::slope_text(seg.matching.nearest)
+                            number::signed(seg.matching.nearest)
                         ));
                     }
                 }

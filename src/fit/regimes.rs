@@ -7,7 +7,9 @@
 //! Out: `ModelRegimes`, and `SlopeMatch` for a measured slope with its
 //! standard error.
 
-use crate::base::number::{self, Q};
+#[cfg(feature = "serde")]
+use crate::base::number;
+use crate::base::number::Q;
 
 /// How one concentration goes in a regime: `c ∝ pO2^slope · Π K_j^e_j`
 /// (times constants fixed by the regime, such as the dopant level).
@@ -311,7 +313,7 @@ pub struct Candidate {
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
-pub enum Verdict {
+pub enum SlopeVerdict {
     /// Exactly one candidate lies inside the confidence interval.
     Match,
     /// Several candidates lie inside it: the data cannot tell them apart.
@@ -322,13 +324,13 @@ pub enum Verdict {
     Untested,
 }
 
-impl Verdict {
+impl SlopeVerdict {
     pub fn as_str(self) -> &'static str {
         match self {
-            Verdict::Match => "match",
-            Verdict::Ambiguous => "ambiguous",
-            Verdict::NoMatch => "no match",
-            Verdict::Untested => "untested",
+            SlopeVerdict::Match => "match",
+            SlopeVerdict::Ambiguous => "ambiguous",
+            SlopeVerdict::NoMatch => "no match",
+            SlopeVerdict::Untested => "untested",
         }
     }
 }
@@ -345,7 +347,7 @@ pub struct SlopeMatch {
     /// Every candidate inside the confidence interval.
     #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q_list"))]
     pub within: Vec<Q>,
-    pub verdict: Verdict,
+    pub verdict: SlopeVerdict,
     /// The regimes predicting the nearest candidate (or, for a match, the
     /// matched one); empty when none does.
     pub predicted_by: Vec<String>,
@@ -364,7 +366,7 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
             nearest: q(0, 1),
             z: None,
             within: Vec::new(),
-            verdict: Verdict::Untested,
+            verdict: SlopeVerdict::Untested,
             predicted_by: Vec::new(),
         };
     };
@@ -373,7 +375,7 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
             nearest: nearest.slope,
             z: None,
             within: Vec::new(),
-            verdict: Verdict::Untested,
+            verdict: SlopeVerdict::Untested,
             predicted_by: nearest.predicted_by.clone(),
         };
     };
@@ -382,9 +384,9 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
         .filter(|c| (to_f(c) - slope).abs() <= crit * se)
         .collect();
     let verdict = match within.len() {
-        0 => Verdict::NoMatch,
-        1 => Verdict::Match,
-        _ => Verdict::Ambiguous,
+        0 => SlopeVerdict::NoMatch,
+        1 => SlopeVerdict::Match,
+        _ => SlopeVerdict::Ambiguous,
     };
     SlopeMatch {
         nearest: nearest.slope,
@@ -392,18 +394,6 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
         within: within.iter().map(|c| c.slope).collect(),
         verdict,
         predicted_by: nearest.predicted_by.clone(),
-    }
-}
-
-/// A slope as `−1/4`, `0`, `+1/6` (sign always shown, Unicode minus).
-pub fn slope_text(s: Q) -> String {
-    let plain = number::to_plain(s).trim_start_matches('-').to_string();
-    if s < Q::from_integer(0) {
-        format!("−{plain}")
-    } else if s > Q::from_integer(0) {
-        format!("+{plain}")
-    } else {
-        plain
     }
 }
 
@@ -539,20 +529,20 @@ mod tests {
     fn matching_never_forces_a_candidate() {
         let cands = ModelRegimes::textbook().candidates();
         let m = match_slope(-0.251, Some(0.004), 2.0, &cands);
-        assert_eq!(m.verdict, Verdict::Match);
+        assert_eq!(m.verdict, SlopeVerdict::Match);
         assert_eq!(m.nearest, q(-1, 4));
         assert!(m.predicted_by.iter().any(|w| w == "n in acceptor-fixed"));
         // Halfway between −1/4 and −1/6, precisely measured: no match.
         let m = match_slope(-0.208, Some(0.003), 2.0, &cands);
-        assert_eq!(m.verdict, Verdict::NoMatch);
+        assert_eq!(m.verdict, SlopeVerdict::NoMatch);
         // Imprecise: both are possible.
         let m = match_slope(-0.2, Some(0.05), 2.0, &cands);
-        assert_eq!(m.verdict, Verdict::Ambiguous);
+        assert_eq!(m.verdict, SlopeVerdict::Ambiguous);
         let m = match_slope(-0.2, None, 2.0, &cands);
-        assert_eq!(m.verdict, Verdict::Untested);
+        assert_eq!(m.verdict, SlopeVerdict::Untested);
         // −1/8 is on the ladder but no textbook regime predicts it.
         let m = match_slope(-0.126, Some(0.002), 2.0, &cands);
-        assert_eq!((m.verdict, m.nearest), (Verdict::Match, q(-1, 8)));
+        assert_eq!((m.verdict, m.nearest), (SlopeVerdict::Match, q(-1, 8)));
         assert!(m.predicted_by.is_empty());
     }
 

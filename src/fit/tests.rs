@@ -5,7 +5,7 @@
 
 use super::arrhenius::{ArrheniusForm, K_B_EV};
 use super::csv_input::BAR_PER_ATM;
-use super::regimes::Verdict;
+use super::regimes::SlopeVerdict;
 use super::*;
 use crate::base::number::Q;
 
@@ -101,7 +101,7 @@ fn piecewise_slopes_and_breaks_are_recovered_from_noisy_data() {
         let se = s.slope_se.unwrap();
         // Tolerance: 4 standard errors, and the SE itself below 0.02.
         assert!((s.slope - want).abs() < 4.0 * se && se < 0.02, "{s:#?}");
-        assert_eq!(s.matching.verdict, Verdict::Match, "{s:#?}");
+        assert_eq!(s.matching.verdict, SlopeVerdict::Match, "{s:#?}");
     }
     // Breaks within one point spacing (0.8 decades) of the truth.
     assert!((segs[0].po2_max_bar.log10() + 15.0).abs() < 0.81 + 0.5);
@@ -215,7 +215,7 @@ fn a_slope_of_another_mechanism_is_not_forced_onto_a_regime() {
     let r = analyse(&m, None, &FitOptions::default()).unwrap();
     // However the line is cut, no piece may be called a regime's slope.
     for s in &r.isotherms[0].segments {
-        assert_eq!(s.matching.verdict, Verdict::NoMatch, "{s:#?}");
+        assert_eq!(s.matching.verdict, SlopeVerdict::NoMatch, "{s:#?}");
     }
     // Its decomposition with −1/4 cannot follow −0.21 and says so.
     assert!(r.isotherms[0].decomposition.as_ref().unwrap().poor);

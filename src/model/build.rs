@@ -325,10 +325,7 @@ fn amount_per_formula_unit(fix: &FixLine, host: &Host) -> Result<(f64, String), 
                 .sum();
             if a <= 0.0 {
                 return Err(bad(
-                    format!(
-                        "{text} contains no {}",
-                        crate::base::elements::by_z(z).map_or("?", |e| e.symbol)
-                    ),
+                    format!("{text} contains no {}", crate::base::elements::symbol(z)),
                     "name the dopant compound that supplies the fixed species",
                 ));
             }

@@ -101,10 +101,6 @@ const USUAL_GASES: &[&str] = &[
     "I2",
 ];
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 /// Identity of a species independent of how it was written.
 pub fn species_key(species: &Species) -> String {
     let mut normal = species.clone();
@@ -161,7 +157,7 @@ pub fn is_lattice(species: &Species) -> bool {
 fn compound_text(compound: &Compound, style: Style) -> String {
     let mut out = String::new();
     for (z, n) in &compound.formula.atoms {
-        out.push_str(symbol(*z));
+        out.push_str(elements::symbol(*z));
         if *n == Q::from_integer(1) {
             continue;
         }

@@ -35,10 +35,6 @@ impl Style {
     }
 }
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 fn write_count(out: &mut String, n: Q, style: Style) {
     if n == Q::from_integer(1) {
         return;
@@ -104,7 +100,7 @@ fn write_formula(out: &mut String, formula: &Formula, style: Style) {
         style
     };
     for (z, n) in &formula.atoms {
-        out.push_str(symbol(*z));
+        out.push_str(elements::symbol(*z));
         write_count(out, *n, style);
     }
 }
@@ -146,7 +142,7 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
         (Site::Interstitial, Style::Html | Style::Markdown) => out.push_str("<sub><i>i</i></sub>"),
         (Site::Lattice { element, label }, Style::Html | Style::Markdown) => {
             out.push_str("<sub>");
-            out.push_str(symbol(*element));
+            out.push_str(elements::symbol(*element));
             if let Some(label) = label {
                 let _ = write!(out, ":{}", escape_html(label));
             }
@@ -155,7 +151,7 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
         (Site::Interstitial, Style::Latex) => out.push_str("_{i}"),
         (Site::Interstitial, _) => out.push_str("_i"),
         (Site::Lattice { element, label }, Style::Latex) => {
-            let _ = write!(out, "_{{\\mathrm{{{}}}", symbol(*element));
+            let _ = write!(out, "_{{\\mathrm{{{}}}", elements::symbol(*element));
             if let Some(label) = label {
                 let _ = write!(out, "\\mathrm{{:{label}}}");
             }
@@ -168,7 +164,7 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
             },
             _,
         ) => {
-            let _ = write!(out, "_{{{}:{label}}}", symbol(*element));
+            let _ = write!(out, "_{{{}:{label}}}", elements::symbol(*element));
         }
         (
             Site::Lattice {
@@ -177,7 +173,7 @@ fn write_site(out: &mut String, site: &Site, style: Style) {
             },
             _,
         ) => {
-            let _ = write!(out, "_{}", symbol(*element));
+            let _ = write!(out, "_{}", elements::symbol(*element));
         }
     }
 }

@@ -1,11 +1,11 @@
 //! What `lacuna balance` and the workbench's `/balance` print.
 //!
-//! In: the balancer's `Outcome` (see `crate::balance::checked`). Out: the
+//! In: the balancer's `Balancing` (see `crate::balance::checked`). Out: the
 //! outcome written for people: the balanced reaction, or the independent
 //! balanced reactions when there are several.
 
 use super::Palette;
-use crate::balance::{Balanced, Outcome, Status};
+use crate::balance::{Balanced, Balancing, Status};
 use crate::notation::{Style, render_reaction};
 use std::io::{self, Write};
 
@@ -15,7 +15,7 @@ use std::io::{self, Write};
 pub fn write_outcome(
     out: &mut dyn Write,
     palette: Palette,
-    outcome: &Outcome,
+    outcome: &Balancing,
     style: Style,
     conventional: bool,
 ) -> io::Result<bool> {

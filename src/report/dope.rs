@@ -8,6 +8,7 @@
 //! the ranking is a guide. Colour comes from the caller's `Palette`.
 
 use super::Palette;
+use crate::base::text::{pad, width};
 use crate::generate::dope::{CAVEAT, CnSource, Dopant, Mechanism, Report, SizeMatch};
 use crate::generate::dope::{compensating_text, compound_text, reaction_text, site_name};
 use crate::host::Host;
@@ -38,14 +39,6 @@ fn mismatch_text(m: &Mechanism) -> String {
     m.size
         .as_ref()
         .map_or_else(|| "— (interstitial)".to_string(), size_text)
-}
-
-fn width(text: &str) -> usize {
-    text.chars().count()
-}
-
-fn pad(text: &str, to: usize) -> String {
-    format!("{text}{}", " ".repeat(to.saturating_sub(width(text))))
 }
 
 /// Writes the table. `cn_override` says how to override an assumed

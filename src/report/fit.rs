@@ -5,7 +5,9 @@
 //! `Palette`.
 
 use super::Palette;
-use crate::fit::regimes::{Verdict, slope_text};
+use crate::base::number;
+use crate::base::text::{self, pad};
+use crate::fit::regimes::SlopeVerdict;
 use crate::fit::{FitReport, IsothermReport, sci};
 use std::io::{self, Write};
 
@@ -29,7 +31,7 @@ fn unit_for(exponent: crate::base::number::Q) -> String {
     if exponent == crate::base::number::Q::from_integer(0) {
         "S/cm".into()
     } else {
-        format!("S/cm at 1 bar, × pO2^({})", slope_text(exponent))
+        format!("S/cm at 1 bar, × pO2^({})", number::signed(exponent))
     }
 }
 
@@ -60,7 +62,7 @@ pub fn write_table(out: &mut dyn Write, r: &FitReport, p: Palette) -> io::Result
         if q == crate::base::number::Q::from_integer(0) {
             name.to_string()
         } else {
-            format!("{name}·pO2^({})", slope_text(q))
+            format!("{name}·pO2^({})", number::signed(q))
         }
     };
     writeln!(
@@ -96,30 +98,24 @@ fn write_regimes(out: &mut dyn Write, r: &FitReport) -> io::Result<()> {
     let width = r
         .regimes
         .iter()
-        .map(|g| g.name.chars().count())
+        .map(|g| text::width(&g.name))
         .max()
         .unwrap_or(0);
     let ion_width = r
         .regimes
         .iter()
-        .map(|g| g.ionic_defect.chars().count())
+        .map(|g| text::width(&g.ionic_defect))
         .max()
         .unwrap_or(0);
-    let pad = |text: &str, to: usize| {
-        format!(
-            "{text}{}",
-            " ".repeat(to.saturating_sub(text.chars().count()))
-        )
-    };
     for g in &r.regimes {
         writeln!(
             out,
             "    {}  n {:>5}  p {:>5}  {} {:>5}  {}",
             pad(&g.name, width),
-            slope_text(g.n.slope),
-            slope_text(g.p.slope),
+            number::signed(g.n.slope),
+            number::signed(g.p.slope),
             pad(&g.ionic_defect, ion_width),
-            slope_text(g.ion.slope),
+            number::signed(g.ion.slope),
             g.neutrality
         )?;
     }
@@ -167,11 +163,11 @@ fn write_isotherm(
         let verdict = s.matching.verdict;
         let verdict_text = match verdict {
             _ if s.mixed => "transition".to_string(),
-            Verdict::Match => p.good(verdict.as_str()),
-            Verdict::NoMatch => p.bad(verdict.as_str()),
+            SlopeVerdict::Match => p.good(verdict.as_str()),
+            SlopeVerdict::NoMatch => p.bad(verdict.as_str()),
             _ => verdict.as_str().to_string(),
         };
-        let predicted = if verdict == Verdict::NoMatch {
+        let predicted = if verdict == SlopeVerdict::NoMatch {
             "none within the interval".to_string()
         } else if s.matching.predicted_by.is_empty() {
             "no regime of the model".to_string()
@@ -191,14 +187,14 @@ fn write_isotherm(
             ),
             _ => predicted,
         };
-        let also = if verdict == Verdict::Ambiguous {
+        let also = if verdict == SlopeVerdict::Ambiguous {
             format!(
                 " (also {})",
                 s.matching
                     .within
                     .iter()
                     .filter(|q| **q != s.matching.nearest)
-                    .map(|q| slope_text(*q))
+                    .map(|q| number::signed(*q))
                     .collect::<Vec<_>>()
                     .join(", ")
             )
@@ -211,7 +207,7 @@ fn write_isotherm(
             format!("{} … {}", sci(s.po2_min_bar), sci(s.po2_max_bar)),
             s.points,
             pm(s.slope, s.slope_se, 4),
-            slope_text(s.matching.nearest),
+            number::signed(s.matching.nearest),
             verdict_text,
         )?;
     }

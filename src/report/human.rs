@@ -5,7 +5,7 @@
 use super::Palette;
 use crate::base::diagnostic::{Diagnostic, Severity};
 use crate::base::elements;
-use crate::base::number::{self, Q};
+use crate::base::number;
 use crate::check::{BalanceTable, site_name};
 use crate::file::runner::{ReactionReport, Sink, Summary};
 use crate::host::Host;
@@ -126,14 +126,6 @@ fn help(out: &mut dyn Write, p: Palette, d: &Diagnostic) -> io::Result<()> {
     Ok(())
 }
 
-fn signed(q: Q) -> String {
-    if q < Q::from_integer(0) {
-        format!("−{}", number::to_plain(q).trim_start_matches('-'))
-    } else {
-        number::to_plain(q)
-    }
-}
-
 /// The numbers behind a failing reaction's balances, one row each.
 pub fn write_table(
     out: &mut dyn Write,
@@ -152,13 +144,13 @@ pub fn write_table(
         "right"
     )?;
     for (z, l, r) in &table.elements {
-        let symbol = elements::by_z(*z).map_or("?", |e| e.symbol);
+        let symbol = elements::symbol(*z);
         writeln!(
             out,
             "  {:<14} {:>8} {:>8}  {}",
             format!("mass {symbol}"),
-            signed(*l),
-            signed(*r),
+            number::minus_text(*l),
+            number::minus_text(*r),
             mark(l == r)
         )?;
     }
@@ -167,8 +159,8 @@ pub fn write_table(
         out,
         "  {:<14} {:>8} {:>8}  {}",
         "charge",
-        signed(l),
-        signed(r),
+        number::minus_text(l),
+        number::minus_text(r),
         mark(l == r)
     )?;
     if let (Some(ok), Some(host)) = (site_ok, host) {
@@ -180,8 +172,9 @@ pub fn write_table(
                     "{} {}",
                     site_name(host, *n),
                     match number::sub(*r, *l) {
-                        Ok(d) if r >= l => format!("+{}", number::to_plain(d)),
-                        Ok(d) => signed(d),
+                        // No change reads `+0` in this row, as it always has.
+                        Ok(d) if d.is_zero() => "+0".to_string(),
+                        Ok(d) => number::signed(d),
                         Err(_) => "beyond the exact range".to_string(),
                     }
                 )

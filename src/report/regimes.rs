@@ -5,6 +5,7 @@
 //! text.
 
 use crate::base::number::{self, Q};
+use crate::base::text::{self, pad};
 use crate::model::Model;
 use crate::model::thermo::sig;
 use crate::notation::Style;
@@ -22,15 +23,6 @@ pub enum Along {
     Unordered,
 }
 
-/// A slope with its sign and a Unicode minus: `+1/4`, `−1/6`, `0`.
-fn unicode_slope(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        number::to_plain(q).replacen('-', "−", 1)
-    }
-}
-
 /// The species' Unicode symbols and the column width that fits them all,
 /// for the terminal tables of regimes and concentrations.
 pub fn species_columns(model: &Model) -> (Vec<String>, usize) {
@@ -39,18 +31,12 @@ pub fn species_columns(model: &Model) -> (Vec<String>, usize) {
         .collect();
     let width = names
         .iter()
-        .map(|n| n.chars().count())
+        .map(|n| text::width(n))
         .max()
         .unwrap_or(4)
         .max(10)
         + 2;
     (names, width)
-}
-
-/// `text` padded with spaces to `width` characters.
-pub fn pad(text: &str, width: usize) -> String {
-    let n = text.chars().count();
-    format!("{text}{}", " ".repeat(width.saturating_sub(n)))
 }
 
 /// The regimes part of `lacuna brouwer --format table` (also the
@@ -77,7 +63,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
         .collect();
     let cw = conditions
         .iter()
-        .map(|c| c.chars().count())
+        .map(|c| text::width(c))
         .max()
         .unwrap_or(10)
         .max(10)
@@ -104,7 +90,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
             row.push_str(&pad(&sig(r.to, 3), 11));
         }
         for s in 0..model.species.len() {
-            row.push_str(&pad(&unicode_slope(r.slope(model, s)), width));
+            row.push_str(&pad(&number::signed(r.slope(model, s)), width));
         }
         let _ = writeln!(out, "{}", row.trim_end());
     }
@@ -126,7 +112,7 @@ pub fn regimes_table(model: &Model, regimes: &[Regime], along: Along) -> String 
             ),
             &|r, s| {
                 let e = r.laws.total.get(s).and_then(|row| row.get(j)).copied();
-                unicode_slope(e.unwrap_or(Q::from_integer(0)))
+                number::signed(e.unwrap_or(Q::from_integer(0)))
             },
         );
     }

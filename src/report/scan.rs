@@ -5,7 +5,8 @@
 //! text.
 
 use crate::base::diagnostic::Diagnostic;
-use crate::base::number::{self, Q};
+use crate::base::number;
+use crate::base::text::pad;
 use crate::model::Model;
 use crate::model::thermo::{sig, temperature_text};
 use crate::notation::Style;
@@ -37,18 +38,6 @@ pub fn write_warnings(
         }
     }
     Ok(())
-}
-
-fn signed_slope(q: Q) -> String {
-    if q > Q::from_integer(0) {
-        format!("+{}", number::to_plain(q))
-    } else {
-        number::to_plain(q)
-    }
-}
-
-fn unicode_slope(q: Q) -> String {
-    signed_slope(q).replacen('-', "−", 1)
 }
 
 /// The heading lines: model, units, neutrality, fixed totals.
@@ -101,7 +90,6 @@ pub fn table_text(model: &Model, run: &Scan) -> String {
         let _ = writeln!(out, "{line}");
     }
     let (names, width) = regimes::species_columns(model);
-    let pad = regimes::pad;
     if !run.regimes.is_empty() {
         let along = if matches!(run.mode, Mode::Temperature { .. }) {
             Along::Temperature
@@ -237,7 +225,7 @@ pub fn svg_text(model: &Model, run: &Scan) -> String {
         ));
         for s in 0..model.species.len() {
             let text = if by_po2 {
-                unicode_slope(r.slope(model, s))
+                number::signed(r.slope(model, s))
             } else {
                 match r.enthalpy(model, s) {
                     Some(h) => format!("{} eV", sig(h, 3)),

@@ -8,7 +8,7 @@
 
 use lacuna::file::runner::Runner;
 
-use lacuna::check::rules::{Level, Levels};
+use lacuna::check::rules::{RuleLevel, RuleLevels};
 use lacuna::report::{Palette, human::HumanSink};
 use std::fs::File;
 use std::io::{BufRead, BufReader, BufWriter, Write};
@@ -72,9 +72,9 @@ fn main() -> std::io::Result<()> {
     let mut sink = HumanSink::new(std::io::sink(), Palette::PLAIN);
     // The generated file repeats eight reactions, so the repeated-reaction
     // rule would flag nearly every line; it still runs, its reports are dropped.
-    let mut levels = Levels::default();
+    let mut levels = RuleLevels::default();
     levels
-        .set("repeated-reaction", Level::Allow)
+        .set("repeated-reaction", RuleLevel::Allow)
         .map_err(std::io::Error::other)?;
     let mut checker = Runner::new(None, &mut sink).with_levels(levels);
     // As `lacuna check FILE` does: the lines are prepared on every core.

@@ -5,7 +5,7 @@
 use super::shared::output_failed;
 use super::shared::{ColorChoice, NotationStyle, OutputFormat, fail, host_argument, print_json};
 use crate::balance::checked::check_and_balance;
-use crate::balance::{Outcome, Status};
+use crate::balance::{Balancing, Status};
 use crate::base::diagnostic::Diagnostic;
 use crate::host::Host;
 use crate::notation::parse_reaction;
@@ -91,7 +91,7 @@ fn balance_text(
     text: &str,
     host: Option<&Host>,
     keep_written: bool,
-) -> (Option<Outcome>, Vec<Diagnostic>) {
+) -> (Option<Balancing>, Vec<Diagnostic>) {
     let (parsed, found) = parse_reaction(text, 0..text.len());
     let (outcome, diagnostics) = match parsed {
         Some(reaction) => {
@@ -113,7 +113,7 @@ fn balance_text(
 fn human(
     args: &BalanceArgs,
     text: &str,
-    outcome: Option<&Outcome>,
+    outcome: Option<&Balancing>,
     diagnostics: &[Diagnostic],
 ) -> io::Result<()> {
     let palette: Palette = args.color.palette();

@@ -2,7 +2,7 @@
 //! folders, stdin and inline reactions.
 
 use super::shared::{ColorChoice, fail, host_argument, output_failed, reaction_files};
-use crate::check::rules::{Level, Levels, find_config};
+use crate::check::rules::{RuleLevel, RuleLevels, find_config};
 use crate::file::runner::{Runner, Sink};
 use crate::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
 use clap::{Args, ValueEnum};
@@ -169,7 +169,7 @@ impl<W: Write> Write for Watched<W> {
 
 /// Rule levels: the config file (given, or `lacuna.toml` found upwards from
 /// the current folder), then the command-line flags, which win.
-fn levels(args: &CheckArgs) -> Result<Levels, String> {
+fn levels(args: &CheckArgs) -> Result<RuleLevels, String> {
     let config = match &args.config {
         Some(path) => Some(path.clone()),
         None => std::env::current_dir()
@@ -180,14 +180,14 @@ fn levels(args: &CheckArgs) -> Result<Levels, String> {
         Some(path) => {
             let text = std::fs::read_to_string(&path)
                 .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
-            Levels::from_config(&text, &path)?
+            RuleLevels::from_config(&text, &path)?
         }
-        None => Levels::default(),
+        None => RuleLevels::default(),
     };
     for (names, level) in [
-        (&args.allow, Level::Allow),
-        (&args.warn, Level::Warn),
-        (&args.deny, Level::Deny),
+        (&args.allow, RuleLevel::Allow),
+        (&args.warn, RuleLevel::Warn),
+        (&args.deny, RuleLevel::Deny),
     ] {
         for name in names {
             levels.set(name, level)?;

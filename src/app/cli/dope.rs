@@ -8,8 +8,9 @@ use super::shared::{ColorChoice, fail, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
 use crate::base::number::{self, Q};
+use crate::base::text::{pad, width};
 use crate::generate::dope::compound_text;
-use crate::generate::dope::level::{self, Composition, Level, Volume};
+use crate::generate::dope::level::{self, Composition, DopantLevel, Volume};
 use crate::generate::dope::{Dopant, DopeOptions, Report, mechanisms, parse_dopant, parse_site};
 use crate::host::Host;
 use crate::report::dope::{TableInput, write_report};
@@ -182,7 +183,7 @@ fn convert(
     host: &Host,
     dopant: &Dopant,
     report: &Report,
-    level: &Level,
+    level: &DopantLevel,
     volume: Option<Volume>,
 ) -> LevelResult {
     let text = args.level.as_deref().unwrap_or("");
@@ -222,14 +223,6 @@ fn convert(
 fn percent(q: Q) -> String {
     let v = *q.numer() as f64 / *q.denom() as f64 * 100.0;
     format!("{v:.3} %")
-}
-
-fn width(text: &str) -> usize {
-    text.chars().count()
-}
-
-fn pad(text: &str, to: usize) -> String {
-    format!("{text}{}", " ".repeat(to.saturating_sub(width(text))))
 }
 
 #[allow(clippy::too_many_arguments)]

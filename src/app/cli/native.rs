@@ -4,6 +4,7 @@ use super::shared::output_failed;
 use super::shared::{ColorChoice, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
 use crate::base::diagnostic::{Code, Diagnostic};
+use crate::base::text;
 use crate::generate::native::catalogue;
 use crate::notation::render_reaction;
 use crate::report::human::write_diagnostic;
@@ -87,7 +88,7 @@ pub fn run(args: &NativeArgs) -> ExitCode {
             let width = catalogue
                 .reactions
                 .iter()
-                .map(|r| r.name.chars().count())
+                .map(|r| text::width(&r.name))
                 .max()
                 .unwrap_or(0);
             for r in &catalogue.reactions {

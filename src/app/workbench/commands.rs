@@ -5,6 +5,7 @@
 //! completion and hints pick it up from the table.
 
 use super::{ArgKind, Args, CommandSpec, Failure, HostSlot, SIGIL, Session, style_of};
+use crate::base::text;
 use crate::host::Host;
 use crate::notation::{Entity, Style, render_reaction, render_term};
 use crate::typeset::{self, Form};
@@ -430,14 +431,14 @@ fn species(session: &mut Session, _args: &Args<'_>, out: &mut dyn Write) -> Resu
         writeln!(out, "no species yet")?;
         return Ok(());
     }
-    let width = seen.keys().map(|k| k.chars().count()).max().unwrap_or(0);
-    for (text, uses) in &seen {
+    let width = seen.keys().map(|k| text::width(k)).max().unwrap_or(0);
+    for (species, uses) in &seen {
         let uses: Vec<String> = uses.iter().map(|n| format!("[{n}]")).collect();
-        let pad = width.saturating_sub(text.chars().count());
+        let pad = width.saturating_sub(text::width(species));
         writeln!(
             out,
             "  {}{}  in {}",
-            session.palette.species(text),
+            session.palette.species(species),
             " ".repeat(pad),
             uses.join(" ")
         )?;

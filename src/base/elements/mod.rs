@@ -61,6 +61,16 @@ pub fn by_z(z: u8) -> Option<&'static Element> {
     ELEMENTS.get(usize::from(z).checked_sub(1)?)
 }
 
+/// The symbol of the element with atomic number `z`, or `?` outside 1 to 118.
+///
+/// ```
+/// assert_eq!(lacuna::base::elements::symbol(40), "Zr");
+/// assert_eq!(lacuna::base::elements::symbol(0), "?");
+/// ```
+pub fn symbol(z: u8) -> &'static str {
+    by_z(z).map_or("?", |e| e.symbol)
+}
+
 /// All 118 elements in atomic-number order.
 pub fn all() -> &'static [Element] {
     &ELEMENTS

@@ -9,7 +9,7 @@
 //! bounded by the batch.
 
 use super::{Recording, Runner, Summary};
-use crate::check::rules::Levels;
+use crate::check::rules::RuleLevels;
 use crate::host::Host;
 use std::fs::File;
 use std::io::{self, BufReader};
@@ -92,7 +92,7 @@ impl Runner<'_> {
 /// levels.
 fn check_one(
     host: &Option<Arc<Host>>,
-    levels: &Levels,
+    levels: &RuleLevels,
     path: &Path,
     keep_passing: bool,
 ) -> FileResult {

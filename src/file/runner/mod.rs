@@ -20,7 +20,7 @@ pub use line::{CheckedReaction, check_line};
 pub use sink::{Event, OwnedReport, ReactionReport, Recording, Sink, Summary};
 
 use crate::base::diagnostic::Diagnostic;
-use crate::check::rules::Levels;
+use crate::check::rules::RuleLevels;
 use crate::host::Host;
 use std::io;
 use std::sync::Arc;
@@ -28,7 +28,7 @@ use std::sync::Arc;
 /// Checks reaction sources one after another, keeping per-source state.
 pub struct Runner<'s> {
     default_host: Option<Arc<Host>>,
-    levels: Levels,
+    levels: RuleLevels,
     sink: &'s mut dyn Sink,
     pub summary: Summary,
 }
@@ -37,14 +37,14 @@ impl<'s> Runner<'s> {
     pub fn new(default_host: Option<Host>, sink: &'s mut dyn Sink) -> Self {
         Runner {
             default_host: default_host.map(Arc::new),
-            levels: Levels::default(),
+            levels: RuleLevels::default(),
             sink,
             summary: Summary::default(),
         }
     }
 
     /// Sets the rule levels (from `lacuna.toml` and the command line).
-    pub fn with_levels(mut self, levels: Levels) -> Self {
+    pub fn with_levels(mut self, levels: RuleLevels) -> Self {
         self.levels = levels;
         self
     }

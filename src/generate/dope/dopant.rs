@@ -26,7 +26,7 @@ pub struct Dopant {
 
 impl Dopant {
     pub fn symbol(&self) -> &'static str {
-        elements::by_z(self.element).map_or("?", |e| e.symbol)
+        elements::symbol(self.element)
     }
 
     /// `Y3+`.
@@ -293,15 +293,14 @@ fn compound_cation(
         .filter(|(z, _)| anion_of(*z).is_none())
         .copied()
         .collect();
-    let symbol = |z: u8| elements::by_z(z).map_or("?", |e| e.symbol);
     let anions: Vec<String> = host
         .sublattices
         .iter()
         .filter(|s| s.charge < Q::from_integer(0))
-        .map(|s| symbol(s.element).to_string())
+        .map(|s| elements::symbol(s.element).to_string())
         .collect();
     let [(cation, count)] = others.as_slice() else {
-        let names: Vec<&str> = others.iter().map(|(z, _)| symbol(*z)).collect();
+        let names: Vec<&str> = others.iter().map(|(z, _)| elements::symbol(*z)).collect();
         return Err(error(
             text,
             all.clone(),

@@ -34,9 +34,9 @@ pub enum Unit {
     PerCm3,
 }
 
-/// A level as the user gave it.
+/// A dopant level as the user gave it.
 #[derive(Debug, Clone, PartialEq)]
-pub enum Level {
+pub enum DopantLevel {
     Exact(Q, Unit),
     /// Only per cm³ is read as a float.
     PerCm3(f64),
@@ -45,7 +45,7 @@ pub enum Level {
 /// Reads `8mol%`, `8 mol%`, `14.8cat%`, `3.7site%`, `1.5e21/cm3`.
 ///
 /// `level = number unit ; unit = "mol%" | "cat%" | "site%" | "/cm3" | "cm-3" ;`
-pub fn parse_level(text: &str) -> Result<Level, Box<Diagnostic>> {
+pub fn parse_level(text: &str) -> Result<DopantLevel, Box<Diagnostic>> {
     let t = text.trim();
     let bad = |message: String| {
         Box::new(
@@ -74,13 +74,13 @@ pub fn parse_level(text: &str) -> Result<Level, Box<Diagnostic>> {
     };
     if unit == Unit::PerCm3 {
         return match number_text.parse::<f64>() {
-            Ok(v) if v.is_finite() && v > 0.0 => Ok(Level::PerCm3(v)),
+            Ok(v) if v.is_finite() && v > 0.0 => Ok(DopantLevel::PerCm3(v)),
             _ => Err(bad(format!("`{number_text}` is not a positive number"))),
         };
     }
     match number::parse(number_text) {
         Ok(q) if q > Q::from_integer(0) => match q.checked_div(Q::from_integer(100)) {
-            Ok(y) => Ok(Level::Exact(y, unit)),
+            Ok(y) => Ok(DopantLevel::Exact(y, unit)),
             Err(e) => Err(bad(format!("`{number_text}`: {e}"))),
         },
         Ok(_) => Err(bad("a dopant level must be above zero".into())),
@@ -209,10 +209,6 @@ struct Model {
     /// Atoms of cation elements.
     cations: Linear,
     defects: Vec<ModelDefect>,
-}
-
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
 }
 
 /// Why a composition could not be worked out.
@@ -393,7 +389,7 @@ pub fn mol_fraction(
     host: &Host,
     dopant: &Dopant,
     reaction: &Reaction,
-    level: &Level,
+    level: &DopantLevel,
     volume: Option<Volume>,
 ) -> Result<Q, LevelError> {
     let model = model(host, dopant, reaction)?;
@@ -401,22 +397,28 @@ pub fn mol_fraction(
         LevelError("this level cannot be reached by this mechanism (it would need a mole fraction of dopant compound outside 0 to 1)".into())
     };
     let m = match level {
-        Level::Exact(y, Unit::MolPercent) => *y,
-        Level::Exact(y, Unit::CationPercent) => Ratio {
+        DopantLevel::Exact(y, Unit::MolPercent) => *y,
+        DopantLevel::Exact(y, Unit::CationPercent) => Ratio {
             num: model.dopant,
             den: model.cations,
         }
         .solve(*y)?
         .ok_or_else(out_of_range)?,
-        Level::Exact(y, Unit::SitePercent) => model
+        DopantLevel::Exact(y, Unit::SitePercent) => model
             .compensating()
             .ok_or_else(|| LevelError("this mechanism has no compensating defect".into()))?
             .solve(*y)?
             .ok_or_else(out_of_range)?,
-        Level::Exact(y, Unit::PerCm3) => {
-            return mol_fraction(host, dopant, reaction, &Level::PerCm3(to_f64(*y)), volume);
+        DopantLevel::Exact(y, Unit::PerCm3) => {
+            return mol_fraction(
+                host,
+                dopant,
+                reaction,
+                &DopantLevel::PerCm3(to_f64(*y)),
+                volume,
+            );
         }
-        Level::PerCm3(value) => {
+        DopantLevel::PerCm3(value) => {
             let volume = volume.ok_or_else(|| {
                 LevelError(
                     "atoms per cm³ need a density (--density) or a cubic cell (--cell)".into(),
@@ -554,14 +556,14 @@ pub fn formula_text(formula: &[(u8, Q)]) -> String {
         .map(|(z, n)| {
             let v = to_f64(*n);
             if n.is_integer() && *n == Q::from_integer(1) {
-                symbol(*z).to_string()
+                elements::symbol(*z).to_string()
             } else if n.is_integer() {
-                format!("{}{}", symbol(*z), n.numer())
+                format!("{}{}", elements::symbol(*z), n.numer())
             } else {
                 let shown = format!("{v:.3}");
                 format!(
                     "{}{}",
-                    symbol(*z),
+                    elements::symbol(*z),
                     shown.trim_end_matches('0').trim_end_matches('.')
                 )
             }
@@ -573,7 +575,7 @@ pub fn formula_text(formula: &[(u8, Q)]) -> String {
 pub fn formula_exact(formula: &[(u8, Q)]) -> String {
     formula
         .iter()
-        .map(|(z, n)| format!("{}{}", symbol(*z), number::to_plain(*n)))
+        .map(|(z, n)| format!("{}{}", elements::symbol(*z), number::to_plain(*n)))
         .collect::<Vec<_>>()
         .join(" ")
 }
@@ -617,7 +619,7 @@ mod tests {
             &h,
             &d,
             &r,
-            &Level::Exact(Q::new(4, 27), Unit::CationPercent),
+            &DopantLevel::Exact(Q::new(4, 27), Unit::CationPercent),
             None,
         )
         .unwrap();
@@ -625,7 +627,7 @@ mod tests {
             &h,
             &d,
             &r,
-            &Level::Exact(Q::new(1, 27), Unit::SitePercent),
+            &DopantLevel::Exact(Q::new(1, 27), Unit::SitePercent),
             None,
         )
         .unwrap();
@@ -671,7 +673,7 @@ mod tests {
             &h,
             &d,
             &r,
-            &Level::PerCm3(a),
+            &DopantLevel::PerCm3(a),
             Some(Volume::Cell {
                 angstrom: 4.2112,
                 units: 4,

@@ -208,10 +208,6 @@ const OXIDIZABLE: &[(&str, i64)] = &[
     ("Ag", 1),
 ];
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 /// Reads a `--site` value: `i` for interstitial, or a cation site (`Zr`, `Fe:A`).
 pub fn parse_site(text: &str, host: &Host) -> Result<DopantSite, Box<Diagnostic>> {
     let t = text.trim();
@@ -563,7 +559,7 @@ impl Generator<'_> {
         let cn = self.structure.cn(i).map_or(6, |s| s.cn);
         let d = radius(self.dopant.element, self.dopant.charge, cn);
         let h = radius(sub.element, *sub.charge.numer(), cn);
-        let ion = |z: u8, q: i64| dopant::ion_text(symbol(z), q);
+        let ion = |z: u8, q: i64| dopant::ion_text(elements::symbol(z), q);
         match (d, h) {
             (Some(d), Some(h)) => {
                 for (r, z, q) in [
@@ -621,8 +617,9 @@ impl Generator<'_> {
     fn host_has(&self, list: &[(&str, i64)]) -> bool {
         self.cations.iter().any(|&i| {
             let s = &self.host.sublattices[i];
-            list.iter()
-                .any(|(sym, q)| symbol(s.element) == *sym && s.charge == Q::from_integer(*q))
+            list.iter().any(|(sym, q)| {
+                elements::symbol(s.element) == *sym && s.charge == Q::from_integer(*q)
+            })
         })
     }
 
@@ -637,7 +634,10 @@ impl Generator<'_> {
         let size = self.size_at(site, &mut notes);
         let mut score = self.site_score(site, size.as_ref());
         let mut second_size = None;
-        let gas_name = format!("{}2(g)", symbol(self.host.sublattices[self.anion].element));
+        let gas_name = format!(
+            "{}2(g)",
+            elements::symbol(self.host.sublattices[self.anion].element)
+        );
         let b = &self.build;
         let text =
             |s: Option<Species>| s.map_or_else(String::new, |s| render_species(&s, Style::Unicode));
@@ -774,7 +774,9 @@ pub fn compensating_text(host: &Host, m: &Mechanism, style: Style) -> String {
     let text = render_species(species, style);
     let gas = main_anion(host)
         .and_then(|i| host.sublattices.get(i))
-        .map_or_else(String::new, |s| format!("{}2(g)", symbol(s.element)));
+        .map_or_else(String::new, |s| {
+            format!("{}2(g)", elements::symbol(s.element))
+        });
     match m.gas {
         Gas::None => text,
         Gas::Releases => format!("{text} + {gas} released"),

@@ -116,12 +116,8 @@ pub fn radius(z: u8, charge: i64, cn: u8) -> Option<Radius> {
     })
 }
 
-fn symbol(z: u8) -> &'static str {
-    elements::by_z(z).map_or("?", |e| e.symbol)
-}
-
 fn is(z: u8, list: &[&str]) -> bool {
-    list.contains(&symbol(z))
+    list.contains(&elements::symbol(z))
 }
 
 /// Guesses the structure of `host` and applies `overrides` (sublattice, CN).
@@ -186,7 +182,7 @@ fn guess(host: &Host) -> Structure {
         };
     let oxide_like = x_charge == -2;
     let halide = x_charge == -1;
-    let oxide = symbol(x.element) == "O";
+    let oxide = elements::symbol(x.element) == "O";
     match cations.as_slice() {
         [m] => {
             let sub = &host.sublattices[*m];

@@ -1,6 +1,6 @@
 //! The JSON shape of `lacuna balance --format json`.
 
-use crate::balance::{Outcome, Status};
+use crate::balance::{Balancing, Status};
 use crate::base::diagnostic::Diagnostic;
 use crate::base::number;
 use crate::notation::{Style, render_reaction};
@@ -32,7 +32,7 @@ pub struct JsonReport<'a> {
 /// with fractional coefficients.
 pub fn balance_json<'a>(
     text: &'a str,
-    outcome: Option<&Outcome>,
+    outcome: Option<&Balancing>,
     diagnostics: &'a [Diagnostic],
     style: Style,
     conventional: bool,

@@ -6,8 +6,9 @@
 //! drawn with the SVG writer's shared pieces (`super`).
 
 use super::{close, escape, frame, open};
+use crate::base::number;
 use crate::fit::FitReport;
-use crate::fit::regimes::{Verdict, slope_text};
+use crate::fit::regimes::SlopeVerdict;
 use std::fmt::Write;
 
 const WIDTH: f64 = 760.0;
@@ -136,14 +137,22 @@ pub fn render_fit(r: &FitReport) -> String {
             );
             let label = match seg.matching.verdict {
                 _ if seg.mixed => format!("transition ({:+.3})", seg.slope),
-                Verdict::Match => {
-                    format!("{} ({:+.3})", slope_text(seg.matching.nearest), seg.slope)
+                SlopeVerdict::Match => {
+                    format!(
+                        "{} ({:+.3})",
+                        number::signed(seg.matching.nearest),
+                        seg.slope
+                    )
                 }
-                Verdict::Ambiguous => {
-                    format!("{}? ({:+.3})", slope_text(seg.matching.nearest), seg.slope)
+                SlopeVerdict::Ambiguous => {
+                    format!(
+                        "{}? ({:+.3})",
+                        number::signed(seg.matching.nearest),
+                        seg.slope
+                    )
                 }
-                Verdict::NoMatch => format!("no match ({:+.3})", seg.slope),
-                Verdict::Untested => format!("{:+.3}", seg.slope),
+                SlopeVerdict::NoMatch => format!("no match ({:+.3})", seg.slope),
+                SlopeVerdict::Untested => format!("{:+.3}", seg.slope),
             };
             let (mx, my) = ((a + b) / 2.0, seg.intercept + seg.slope * (a + b) / 2.0);
             let _ = writeln!(
