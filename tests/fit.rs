@@ -516,3 +516,25 @@ fn a_model_without_what_the_fit_needs_is_refused_with_its_place() {
         .code(1)
         .stderr(predicate::str::contains(format!("{shown}:3:")));
 }
+
+/// Human output writes negative slopes, logarithms and statistics with a
+/// true minus sign (U+2212), as the exact slopes beside them already are.
+/// source: common practice (typeset mathematics uses U+2212 for minus).
+#[test]
+fn human_report_uses_a_true_minus_sign() {
+    let run = crate::support::lacuna(
+        &[
+            "fit",
+            &crate::support::repo("examples/pump-cell-conductivity.csv"),
+        ],
+        None,
+    );
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    assert!(run.stdout.contains("runs z −"), "{}", run.stdout);
+    assert!(run.stdout.contains("(log10 −"), "{}", run.stdout);
+    for line in run.stdout.lines() {
+        for ascii in [" -0.", "z -", "log10 -"] {
+            assert!(!line.contains(ascii), "ASCII minus in: {line}");
+        }
+    }
+}

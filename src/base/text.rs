@@ -19,6 +19,18 @@ pub fn pad(text: &str, columns: usize) -> String {
     format!("{text}{}", " ".repeat(columns.saturating_sub(width(text))))
 }
 
+/// A decimal with its sign always shown and a true minus sign (U+2212):
+/// `+0.251`, `−0.228`, for slopes and logarithms in human output.
+///
+/// ```
+/// use lacuna::base::text::signed_decimal;
+/// assert_eq!(signed_decimal(-0.2281, 3), "−0.228");
+/// assert_eq!(signed_decimal(5.414, 2), "+5.41");
+/// ```
+pub fn signed_decimal(value: f64, places: usize) -> String {
+    format!("{value:+.places$}").replacen('-', "−", 1)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -33,5 +45,14 @@ mod tests {
             }
         }
         assert_eq!(width("V_O••"), 5);
+    }
+
+    #[test]
+    fn signed_decimals_use_a_true_minus() {
+        // common practice: typeset negative numbers carry U+2212, not a hyphen.
+        assert_eq!(signed_decimal(-0.25, 3), "−0.250");
+        assert_eq!(signed_decimal(0.25, 1), "+0.2");
+        assert_eq!(signed_decimal(0.0, 2), "+0.00");
+        assert!(!signed_decimal(-16.0, 2).contains('-'));
     }
 }

@@ -493,11 +493,11 @@ fn analyse_isotherm(
                         .is_some_and(|(_, share)| *share < DOMINANT_SHARE);
                     if seg.mixed && seg.matching.verdict != regimes::SlopeVerdict::NoMatch {
                         notes.push(format!(
-                            "isotherm {}: the piece {} … {} bar has slope {:+.3}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
+                            "isotherm {}: the piece {} … {} bar has slope {}, near {}, but the decomposition shares its conductivity between carriers there: an apparent slope of a transition, not evidence for a regime",
                             iso.label,
                             sci(seg.po2_min_bar),
                             sci(seg.po2_max_bar),
-                            seg.slope,
+                            crate::base::text::signed_decimal(seg.slope, 3),
                             number::signed(seg.matching.nearest)
                         ));
                     }

@@ -8,7 +8,7 @@
 //! the ranking is a guide. Colour comes from the caller's `Palette`.
 
 use super::Palette;
-use crate::base::text::{pad, width};
+use crate::base::text::{self, pad, width};
 use crate::generate::dope::{CAVEAT, CnSource, Dopant, Mechanism, Report, SizeMatch};
 use crate::generate::dope::{compensating_text, compound_text, reaction_text, site_name};
 use crate::host::Host;
@@ -27,8 +27,8 @@ pub struct TableInput<'a> {
 
 fn size_text(s: &SizeMatch) -> String {
     format!(
-        "{:+.1} % ({:.1} vs {:.1} pm, CN {})",
-        s.mismatch * 100.0,
+        "{} % ({:.1} vs {:.1} pm, CN {})",
+        text::signed_decimal(s.mismatch * 100.0, 1),
         s.dopant.pm,
         s.host.pm,
         s.dopant.cn

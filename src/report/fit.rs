@@ -14,8 +14,8 @@ use std::io::{self, Write};
 /// `value ± se` with `digits` decimals, or the value alone.
 fn pm(value: f64, se: Option<f64>, digits: usize) -> String {
     match se {
-        Some(s) => format!("{value:+.digits$} ± {s:.digits$}"),
-        None => format!("{value:+.digits$} (no SE)"),
+        Some(s) => format!("{} ± {s:.digits$}", text::signed_decimal(value, digits)),
+        None => format!("{} (no SE)", text::signed_decimal(value, digits)),
     }
 }
 
@@ -254,7 +254,7 @@ fn write_isotherm(
                     .map(|c| format!(", χ²/dof {c:.2}"))
                     .unwrap_or_default(),
                 d.runs_z
-                    .map(|z| format!(", runs z {z:+.1}"))
+                    .map(|z| format!(", runs z {}", text::signed_decimal(z, 1)))
                     .unwrap_or_default()
             )?;
             for (name, b, term) in [
@@ -264,9 +264,9 @@ fn write_isotherm(
                 match b {
                     Some(b) => writeln!(
                         out,
-                        "    {name} at pO2 = {} bar (log10 {:+.2}{}){}",
+                        "    {name} at pO2 = {} bar (log10 {}{}){}",
                         sci(b.po2_bar),
-                        b.log10_po2,
+                        text::signed_decimal(b.log10_po2, 2),
                         b.log10_se.map(|s| format!(" ± {s:.2}")).unwrap_or_default(),
                         if b.extrapolated {
                             format!(" {}", p.bad("extrapolated, outside the data"))

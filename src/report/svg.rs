@@ -170,7 +170,7 @@ fn nice_step(span: f64, target: f64) -> f64 {
     10.0 * magnitude
 }
 
-fn tick_text(v: f64) -> String {
+pub(super) fn tick_text(v: f64) -> String {
     if (v - v.round()).abs() < 1e-9 {
         let r = v.round() as i64;
         if r < 0 {

@@ -7,6 +7,7 @@
 
 use super::{close, escape, frame, open};
 use crate::base::number;
+use crate::base::text::signed_decimal;
 use crate::fit::FitReport;
 use crate::fit::regimes::SlopeVerdict;
 use std::fmt::Write;
@@ -79,7 +80,7 @@ pub fn render_fit(r: &FitReport) -> String {
             r##"<line x1="{x:.1}" y1="{TOP}" x2="{x:.1}" y2="{:.1}" stroke="#ddd"/><text x="{x:.1}" y="{:.1}" text-anchor="middle">{}</text>"##,
             TOP + ph,
             TOP + ph + 16.0,
-            fmt_tick(t)
+            super::tick_text(t)
         );
         t += xs;
     }
@@ -92,7 +93,7 @@ pub fn render_fit(r: &FitReport) -> String {
             LEFT + pw,
             LEFT - 6.0,
             y + 4.0,
-            fmt_tick(t)
+            super::tick_text(t)
         );
         t += ys;
     }
@@ -135,24 +136,17 @@ pub fn render_fit(r: &FitReport) -> String {
                 px(b),
                 py(yb)
             );
+            let slope = signed_decimal(seg.slope, 3);
             let label = match seg.matching.verdict {
-                _ if seg.mixed => format!("transition ({:+.3})", seg.slope),
+                _ if seg.mixed => format!("transition ({slope})"),
                 SlopeVerdict::Match => {
-                    format!(
-                        "{} ({:+.3})",
-                        number::signed(seg.matching.nearest),
-                        seg.slope
-                    )
+                    format!("{} ({slope})", number::signed(seg.matching.nearest))
                 }
                 SlopeVerdict::Ambiguous => {
-                    format!(
-                        "{}? ({:+.3})",
-                        number::signed(seg.matching.nearest),
-                        seg.slope
-                    )
+                    format!("{}? ({slope})", number::signed(seg.matching.nearest))
                 }
-                SlopeVerdict::NoMatch => format!("no match ({:+.3})", seg.slope),
-                SlopeVerdict::Untested => format!("{:+.3}", seg.slope),
+                SlopeVerdict::NoMatch => format!("no match ({slope})"),
+                SlopeVerdict::Untested => slope,
             };
             let (mx, my) = ((a + b) / 2.0, seg.intercept + seg.slope * (a + b) / 2.0);
             let _ = writeln!(
@@ -198,13 +192,4 @@ pub fn render_fit(r: &FitReport) -> String {
     );
     close(&mut s);
     s
-}
-
-fn fmt_tick(v: f64) -> String {
-    let r = v.round();
-    if r < 0.0 {
-        format!("−{}", -r)
-    } else {
-        format!("{r}")
-    }
 }
