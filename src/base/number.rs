@@ -121,6 +121,9 @@ impl Q {
     /// `numer/denom` reduced, or `None` for a zero denominator or a result
     /// beyond the `i64` range (`i64::MIN / -1`).
     pub fn checked_new(numer: i64, denom: i64) -> Option<Q> {
+        if denom == 1 {
+            return Some(Q::from_integer(numer));
+        }
         reduce_i128(i128::from(numer), i128::from(denom)).ok()
     }
 
@@ -231,6 +234,13 @@ impl Q {
 
     /// `self - rhs`, or `Overflow`.
     pub fn checked_sub(self, rhs: Q) -> Result<Q, Overflow> {
+        if self.is_integer() && rhs.is_integer() {
+            return self
+                .numer()
+                .checked_sub(*rhs.numer())
+                .map(Q::from_integer)
+                .ok_or(Overflow);
+        }
         if let Some((n, den)) = self.narrow_cross(rhs, i64::checked_sub) {
             return reduce_i128(n.into(), den.into());
         }

@@ -81,10 +81,12 @@ pub fn run(args: &CheckArgs) -> ExitCode {
     };
     let stdout = io::stdout();
     let written = Rc::new(Cell::new(true));
-    let out = Watched {
-        inner: BufWriter::new(stdout.lock()),
+    // The watch sits under the buffer, so the hot path is the buffer's own
+    // and the watch sees only the large writes that reach standard output.
+    let out = BufWriter::new(Watched {
+        inner: stdout.lock(),
         ok: Rc::clone(&written),
-    };
+    });
     let mut sink: Box<dyn Sink> = match args.format {
         Format::Human => {
             let mut human = HumanSink::new(out, args.color.palette());
