@@ -16,6 +16,7 @@ use std::fmt::Write;
 
 /// One sublattice of regular sites.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Sublattice {
     pub element: u8,
     /// Distinguishes two sublattices of one element (`Fe:A`, `Fe:B`).
@@ -39,6 +40,7 @@ impl Sublattice {
 
 /// A host crystal.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Host {
     /// The formula as written.
     pub formula_text: String,
@@ -50,6 +52,7 @@ pub struct Host {
 
 /// What looking a site up in the host found.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum SiteLookup {
     Found(usize),
     /// The element has several labelled sublattices and none was named.

@@ -19,6 +19,7 @@ use std::fmt;
 
 /// An output form.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Form {
     /// `V_O..` — what a keyboard types; a reaction file line.
     Ascii,
@@ -99,6 +100,7 @@ pub fn host_formula(host: &Host, form: Form) -> String {
 
 /// When to set the host over the arrow.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[non_exhaustive]
 pub enum ArrowHost {
     /// Over the arrow of reactions that bring a condensed compound into the
     /// host (`Y2O3 -> ...`), as manuscripts do; a plain arrow for the

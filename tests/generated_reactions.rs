@@ -247,7 +247,11 @@ proptest! {
 
         // Every coefficient written, times `scale`: kept exactly, and still balanced.
         let text = species_text(&left, &right, Some(scale));
-        let outcome = balance(&parse(&text), Some(&host), Options { keep_written: true, explain: false });
+        let outcome = balance(&parse(&text), Some(&host), {
+            let mut options = Options::default();
+            options.keep_written = true;
+            options
+        });
         prop_assert_eq!(outcome.status, Status::Unique, "{}", text);
         let scaled: Vec<(bool, String, Q)> = terms_of(&integer)
             .into_iter()

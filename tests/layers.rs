@@ -216,3 +216,41 @@ fn the_tests_the_code_map_names_exist() {
     }
     assert!(named >= 10, "DEVELOPERS.md names only {named} tests");
 }
+
+/// Enums whose set of cases is closed by nature; every other public enum of
+/// the core may grow and is `#[non_exhaustive]`, so a new case is not a
+/// breaking change for code that embeds the library.
+const CLOSED_ENUMS: &[&str] = &["Side", "Spin"];
+
+#[test]
+fn public_enums_of_the_core_may_grow() {
+    let mut files = Vec::new();
+    rust_files(Path::new(&repo("src")), &mut files);
+    let mut open = Vec::new();
+    let mut seen = 0;
+    for file in files {
+        if file.components().any(|c| c.as_os_str() == "app") {
+            continue;
+        }
+        let text = fs::read_to_string(&file).expect("source");
+        let body = text.split("#[cfg(test)]").next().unwrap_or("");
+        let lines: Vec<&str> = body.lines().collect();
+        for (i, line) in lines.iter().enumerate() {
+            let Some(rest) = line.strip_prefix("pub enum ") else {
+                continue;
+            };
+            let name: String = rest.chars().take_while(|c| c.is_alphanumeric()).collect();
+            seen += 1;
+            let attributes = lines[i.saturating_sub(8)..i].join("\n");
+            if !CLOSED_ENUMS.contains(&name.as_str()) && !attributes.contains("#[non_exhaustive]") {
+                open.push(format!("{}: enum {name}", file.display()));
+            }
+        }
+    }
+    assert!(seen > 20, "found only {seen} public enums");
+    assert!(
+        open.is_empty(),
+        "public enums without #[non_exhaustive]:\n{}",
+        open.join("\n")
+    );
+}

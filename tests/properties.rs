@@ -359,6 +359,7 @@ fn verdicts(text: &str) -> Vec<(u32, bool, Option<Balances>)> {
                 ))
             }
             Event::Problem { .. } => None,
+            _ => None,
         })
         .collect()
 }

@@ -33,6 +33,7 @@ fn severity(d: &Diagnostic) -> &'static str {
         Severity::Error => "error",
         Severity::Warning => "warning",
         Severity::Note => "note",
+        _ => "another severity",
     }
 }
 
@@ -106,6 +107,7 @@ pub fn items(text: &str) -> String {
             Item::Model { keyword, .. } => {
                 format!("model {} -> {}", &line[keyword], model_line(&doc, number))
             }
+            _ => "an item this test does not know".to_string(),
         };
         let _ = writeln!(out, "{number}: {described}");
         for d in doc.diagnostics.iter().filter(|d| d.line == number) {

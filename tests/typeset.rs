@@ -425,6 +425,7 @@ fn meaning(term: &Term) -> (Q, Meaning) {
         Entity::Associate(a) => Meaning::Associate(a.parts.iter().map(meaning).collect(), a.charge),
         Entity::Compound(c) => Meaning::Compound(c.formula.atoms.clone(), c.phase),
         Entity::Nil => Meaning::Nil,
+        _ => panic!("an entity this test does not know: {term:?}"),
     };
     (term.coefficient, m)
 }

@@ -62,6 +62,7 @@ impl Side {
 
 /// How many balanced reactions the species allow.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Status {
     Unique,
     Several,
@@ -80,6 +81,7 @@ impl Status {
 
 /// What the balancer may change.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Options {
     /// Keep the coefficients the user wrote (the `balance` command). Off,
     /// every coefficient is unknown (the hint `check` gives).
@@ -92,6 +94,7 @@ pub struct Options {
 
 /// One input term's coefficient in a balanced reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct TermCoefficient {
     /// Position among the input's terms other than `nil`, left side first.
     pub input: usize,
@@ -109,6 +112,7 @@ pub struct TermCoefficient {
 
 /// One balanced reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Balanced {
     /// Every input term other than `nil`, in input order.
     pub terms: Vec<TermCoefficient>,
@@ -121,6 +125,7 @@ pub struct Balanced {
 
 /// The balancer's answer.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct Balancing {
     pub status: Status,
     /// One reaction (unique), a basis (several) or none.

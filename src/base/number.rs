@@ -601,6 +601,7 @@ pub fn parse_decimal(text: &str) -> Result<Q, NumberError> {
 
 /// Why a number could not be read.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum NumberError {
     Malformed,
     TooLarge,

@@ -21,6 +21,7 @@ use crate::notation::{
 /// Which balances hold. `site` is `None` when it could not be evaluated
 /// (no host, or a site the host lacks).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Balance {
     pub mass: bool,
     pub charge: bool,
@@ -29,6 +30,7 @@ pub struct Balance {
 
 /// The numbers behind the balances, left and right.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[non_exhaustive]
 pub struct BalanceTable {
     /// (atomic number, left, right) in order of first appearance.
     pub elements: Vec<(u8, Q, Q)>,
@@ -39,6 +41,7 @@ pub struct BalanceTable {
 
 /// The outcome of checking one reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Verdict {
     pub balance: Balance,
     pub table: BalanceTable,

@@ -25,6 +25,7 @@ pub const CONFIG_FILE: &str = "lacuna.toml";
 
 /// What to do with a rule's diagnostics.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum RuleLevel {
     Allow,
     Warn,

@@ -14,6 +14,7 @@ use crate::notation::{Arrow, Entity, Reaction, Style, Term, render_term};
 
 /// How `fmt` spells charge marks and arrows.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum MarkSpelling {
     /// `V_O..`, `Y_Zr'`, `O_Ox`, `->`
     Ascii,

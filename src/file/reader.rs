@@ -29,6 +29,7 @@ pub const MODEL_KEYWORDS: &[&str] = &["K", "dH", "dS", "fix", "temperature", "po
 
 /// What one line of a reaction file holds.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Line {
     Blank,
     Comment,
@@ -144,6 +145,7 @@ fn label_len(text: &str) -> Option<usize> {
 
 /// A reaction as read from its line.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct ReadReaction {
     /// The reaction's span in the line (label and comment excluded).
     pub span: Span,
@@ -278,6 +280,7 @@ fn move_spans(reaction: &mut Reaction, f: &impl Fn(Span) -> Span) {
 
 /// One line read: what it is, and for hosts and reactions what they say.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub enum Item {
     Blank,
     Comment,
@@ -341,6 +344,7 @@ impl HostHandle for Arc<Host> {
 /// What the text over a reaction's arrow does to the host the reaction is
 /// checked against, as `HostTracker` decides it.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct ReactionHost<H = Arc<Host>> {
     /// No host was in force, so the host written over the arrow is used:
     /// the host and its formula as read there. It stays in force for the

@@ -19,6 +19,7 @@ pub const KJ_PER_MOL_PER_EV: f64 = 96.485_332_12;
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
+#[non_exhaustive]
 pub enum ArrheniusForm {
     /// ln(σ·T) = ln A − E_a/(k_B·T): the form of thermally activated hopping.
     SigmaT,
@@ -37,6 +38,7 @@ impl ArrheniusForm {
 
 /// One isotherm's value of a component.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct ComponentPoint {
     pub isotherm: String,
     pub temperature_k: f64,
@@ -45,6 +47,7 @@ pub struct ComponentPoint {
 
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct ArrheniusFit {
     /// `ion`, `n` or `p`.
     pub component: String,
@@ -146,6 +149,7 @@ pub fn fit_component(
 /// A reaction enthalpy read from a term's activation energy.
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Enthalpy {
     /// The reaction's name and equation.
     pub reaction: String,

@@ -15,6 +15,7 @@ use crate::base::number::Q;
 /// The three exponents of pO2, exact.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Exponents {
     #[cfg_attr(
         feature = "serde",
@@ -40,6 +41,7 @@ pub(crate) fn q_to_f64(q: Q) -> f64 {
 /// A fitted non-negative term.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Estimate {
     pub value: f64,
     /// Standard error; `None` at the zero bound or without degrees of freedom.
@@ -51,6 +53,7 @@ pub struct Estimate {
 /// Where an electronic term equals the ionic one.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Boundary {
     pub po2_bar: f64,
     pub log10_po2: f64,
@@ -62,6 +65,7 @@ pub struct Boundary {
 /// One point of the fitted curves.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct CurvePoint {
     pub po2_bar: f64,
     pub sigma: f64,
@@ -73,6 +77,7 @@ pub struct CurvePoint {
 
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Decomposition {
     pub exponents: Exponents,
     pub sigma_ion: Estimate,
@@ -132,6 +137,7 @@ impl Decomposition {
 
 /// Options of the decomposition.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub struct DecomposeOptions {
     /// Without uncertainties, an rms residual above this (decades of σ)
     /// marks the fit poor.

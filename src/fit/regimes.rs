@@ -15,6 +15,7 @@ use crate::base::number::Q;
 /// (times constants fixed by the regime, such as the dopant level).
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct CarrierLaw {
     /// Exact exponent of pO2.
     #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
@@ -39,6 +40,7 @@ impl CarrierLaw {
 /// One Brouwer regime.
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Regime {
     /// Short name used on the command line (`--regime`) and in reports.
     pub name: String,
@@ -54,6 +56,7 @@ pub struct Regime {
 /// A defect reaction the regimes refer to by name.
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct ReactionInfo {
     pub name: String,
     pub equation: String,
@@ -64,6 +67,7 @@ pub struct ReactionInfo {
 /// The regimes a fit compares its slopes with.
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct ModelRegimes {
     /// Where the regimes come from (a model file, or the textbook set).
     pub source: String,
@@ -301,6 +305,7 @@ fn reaction(name: &str, equation: &str, law: &str) -> ReactionInfo {
 /// An exact slope a measurement may be compared with.
 #[derive(Debug, Clone, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Candidate {
     #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub slope: Q,
@@ -313,6 +318,7 @@ pub struct Candidate {
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
+#[non_exhaustive]
 pub enum SlopeVerdict {
     /// Exactly one candidate lies inside the confidence interval.
     Match,
@@ -338,6 +344,7 @@ impl SlopeVerdict {
 /// The comparison of one measured slope with the candidates.
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct SlopeMatch {
     /// The nearest candidate.
     #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]

@@ -32,6 +32,7 @@ use super::linalg::{LineFit, Matrix, critical_value, fit_line, lstsq, normal_inv
 
 /// Choices of the segmentation.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub struct SegmentOptions {
     /// Fewest points in a piece (at least 3).
     pub min_points: usize,
@@ -53,6 +54,7 @@ impl Default for SegmentOptions {
 
 /// One straight piece: points `start..end` of the sorted isotherm.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Piece {
     pub start: usize,
     pub end: usize,
@@ -62,6 +64,7 @@ pub struct Piece {
 /// BIC of the best split into `segments` pieces.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct BicEntry {
     pub segments: usize,
     pub wrss: f64,
@@ -69,6 +72,7 @@ pub struct BicEntry {
 }
 
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Segmentation {
     pub pieces: Vec<Piece>,
     pub bic: Vec<BicEntry>,

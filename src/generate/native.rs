@@ -17,6 +17,7 @@ use crate::notation::{Arrow, Entity, Formula, Phase, Reaction};
 
 /// A family of intrinsic defect reactions.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Family {
     Schottky,
     /// On the cation sublattice with this index.
@@ -42,6 +43,7 @@ pub enum Family {
 
 /// One generated reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct NativeReaction {
     pub family: Family,
     /// A short name such as `Frenkel (Zr)`.
@@ -52,6 +54,7 @@ pub struct NativeReaction {
 
 /// The catalogue of a host, with the sublattices that had to be left out.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Catalogue {
     pub reactions: Vec<NativeReaction>,
     /// Sublattices whose formal charge is not an integer (no integer

@@ -34,6 +34,7 @@ pub struct Row {
 
 /// What kind of constraint a level of the network is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Constraint {
     /// Σ z_s c_s = 0.
     Charge,
@@ -60,6 +61,7 @@ pub struct Network {
 
 /// Why a set of equilibria and constraints does not determine the concentrations.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum NetworkError {
     /// Equilibrium `index` is a combination of earlier ones.
     DependentEquilibria {

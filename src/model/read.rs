@@ -18,6 +18,7 @@ use std::sync::Arc;
 
 /// A reaction line of the file.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct ReactionLine {
     pub label: Option<String>,
     pub label_span: Option<Span>,
@@ -44,6 +45,7 @@ pub enum Datum {
 
 /// One line of thermodynamic data.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct DataLine {
     pub label: String,
     pub label_span: Span,
@@ -68,6 +70,7 @@ pub enum Basis {
 
 /// A `fix` line.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct FixLine {
     pub subject: Species,
     pub subject_span: Span,
@@ -79,6 +82,7 @@ pub struct FixLine {
 
 /// A `pressure` line.
 #[derive(Debug, Clone)]
+#[non_exhaustive]
 pub struct PressureLine {
     /// Gas identity as the law module keys it (`gas H2O`).
     pub key: String,
@@ -90,6 +94,7 @@ pub struct PressureLine {
 
 /// Everything read from a reaction file, before it is assembled into a model.
 #[derive(Debug, Clone, Default)]
+#[non_exhaustive]
 pub struct Document {
     pub source: String,
     pub lines: Vec<String>,

@@ -28,6 +28,7 @@ pub type Span = Range<usize>;
 
 /// What sits on a site: atoms, nothing, or a free charge carrier.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[non_exhaustive]
 pub enum Occupant {
     /// An element or a group such as `OH`. `escaped` is set for `el:V`, the
     /// spelling that says "vanadium" where a bare `V` would be ambiguous.
@@ -42,6 +43,7 @@ pub enum Occupant {
 
 /// How a vacancy was written; only a bare `V` can clash with vanadium.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[non_exhaustive]
 pub enum VacancySpelling {
     /// `V`
     Bare,
@@ -80,6 +82,7 @@ impl Formula {
 
 /// The site subscript of a species.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[non_exhaustive]
 pub enum Site {
     /// A regular site, named by the element that occupies it in the perfect
     /// host, with an optional sublattice label (`Fe:A`).
@@ -93,6 +96,7 @@ pub enum Site {
 
 /// Which family of charge marks a species was written with (for style rules).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[non_exhaustive]
 pub enum MarkStyle {
     /// No mark at all: neutral by convention.
     Unmarked,
@@ -191,6 +195,7 @@ impl Associate {
 
 /// Physical state tag of a compound.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[non_exhaustive]
 pub enum Phase {
     Gas,
     Solid,
@@ -207,6 +212,7 @@ pub struct Compound {
 
 /// What a term stands for.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Entity {
     Species(Species),
     Associate(Associate),
@@ -227,6 +233,7 @@ pub struct Term {
 
 /// How the two sides are joined.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Arrow {
     /// `->`, `→`
     Forward,

@@ -14,6 +14,7 @@ use std::fmt::Write;
 
 /// Which spelling of the notation to write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Style {
     /// `V_O..`, `Y_Zr'`, `O_Ox`, `->`
     Ascii,

@@ -37,6 +37,7 @@ pub(super) struct PreparedReaction {
 /// path from a reaction's text to its verdict, for `check`, the model
 /// reader, `typeset` and the workbench.
 #[derive(Debug)]
+#[non_exhaustive]
 pub struct CheckedReaction<H = Arc<Host>> {
     /// The reaction, when it parsed; its spans are byte ranges of the line.
     pub reaction: Option<Reaction>,

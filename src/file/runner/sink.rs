@@ -11,6 +11,7 @@ use std::sync::Arc;
 
 /// Everything known about one reaction line after checking it.
 #[derive(Debug)]
+#[non_exhaustive]
 pub struct ReactionReport<'a> {
     /// The source's name: a path, `<stdin>` or `<inline>`.
     pub source: &'a str,
@@ -59,6 +60,7 @@ pub trait Sink {
 
 /// Totals over everything checked.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct Summary {
     pub sources: u64,
     pub reactions: u64,
@@ -101,6 +103,7 @@ pub struct OwnedReport {
 
 /// What a `Recording` captured, in order.
 #[derive(Debug)]
+#[non_exhaustive]
 pub enum Event {
     Reaction(Box<OwnedReport>),
     Problem {

@@ -22,6 +22,7 @@ use crate::notation::{Entity, Occupant, Reaction, Site, Species, Style, render_s
 
 /// The unit a level is given in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Unit {
     /// mol % of the dopant compound (`8mol%`).
     MolPercent,
@@ -36,6 +37,7 @@ pub enum Unit {
 
 /// A dopant level as the user gave it.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub enum DopantLevel {
     Exact(Q, Unit),
     /// Only per cm³ is read as a float.
@@ -142,6 +144,7 @@ impl Ratio {
 
 /// One defect's amount at the level.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct DefectFraction {
     /// `V_O••` (Unicode).
     pub species: String,
@@ -152,6 +155,7 @@ pub struct DefectFraction {
 
 /// The doped crystal at one level, per formula unit of sites.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Composition {
     /// Mole fraction of the dopant compound, m.
     pub mol_fraction: Q,
@@ -167,6 +171,7 @@ pub struct Composition {
 
 /// How to turn formula units into volume.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub enum Volume {
     /// Density in g/cm³.
     Density(f64),

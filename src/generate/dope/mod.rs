@@ -35,6 +35,7 @@ use structure::radius;
 
 /// Where the dopant goes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum DopantSite {
     /// The cation sublattice with this index.
     Lattice(usize),
@@ -43,6 +44,7 @@ pub enum DopantSite {
 
 /// What compensates the dopant's effective charge.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[non_exhaustive]
 pub enum Compensation {
     /// Isovalent: nothing to compensate.
     None,
@@ -107,6 +109,7 @@ impl Compensation {
 
 /// Gas exchange a mechanism needs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Gas {
     None,
     Releases,
@@ -115,6 +118,7 @@ pub enum Gas {
 
 /// Dopant and host radius at one site.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub struct SizeMatch {
     pub dopant: Radius,
     pub host: Radius,
@@ -124,6 +128,7 @@ pub struct SizeMatch {
 
 /// One balanced incorporation mechanism.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Mechanism {
     /// 1 is the best guess.
     pub rank: usize,
@@ -151,6 +156,7 @@ pub struct Mechanism {
 
 /// Options of a `dope` run.
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct DopeOptions {
     /// Only this site.
     pub site: Option<DopantSite>,
@@ -160,6 +166,7 @@ pub struct DopeOptions {
 
 /// Everything `dope` found.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Report {
     pub structure: Structure,
     pub mechanisms: Vec<Mechanism>,

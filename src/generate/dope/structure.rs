@@ -14,6 +14,7 @@ use crate::host::{Host, SiteLookup};
 
 /// Where a coordination number came from.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum CnSource {
     /// Inferred from the structure type named.
     Assumed,
@@ -35,6 +36,7 @@ impl CnSource {
 
 /// The coordination of one cation sublattice.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[non_exhaustive]
 pub struct SiteCn {
     pub sublattice: usize,
     pub cn: u8,
@@ -43,6 +45,7 @@ pub struct SiteCn {
 
 /// The structure-type guess for a host.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct Structure {
     /// `fluorite`, `perovskite`, …, or `unrecognised`.
     pub name: &'static str,
@@ -83,6 +86,7 @@ impl Structure {
 
 /// A Shannon radius, with the coordination number it was taken at.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub struct Radius {
     pub pm: f64,
     /// The coordination asked for.

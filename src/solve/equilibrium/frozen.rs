@@ -18,6 +18,7 @@ use crate::model::network::{self, Constraint, Network, Row};
 /// charge-state changes of defects) must keep the net charge it had at
 /// equilibrium. Written the plain way, minority carriers would come out of a
 /// difference of two large, nearly equal ionic sums and lose their accuracy.
+#[non_exhaustive]
 pub struct Frozen {
     pub network: Network,
     /// Indices (into the model's equilibria) of the electronic equilibria.

@@ -69,6 +69,7 @@ pub struct Work {
 
 /// Whether one solve converged, and its residuals.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[non_exhaustive]
 pub struct Convergence {
     pub converged: bool,
     /// Relative electroneutrality residual |Σ z c| / Σ |z| c (0 when nothing is charged).
