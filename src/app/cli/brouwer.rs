@@ -180,7 +180,7 @@ pub fn run(args: &BrouwerArgs) -> ExitCode {
     }
     let _ = print_diagnostics(&mut stderr, palette, &source.name, &doc.lines, &model.notes);
     let table = args.format == BrouwerFormat::Table;
-    let computed = compute(args, &model, fixed_po2, table);
+    let computed = scan_from_arguments(args, &model, fixed_po2, table);
     let run = match computed {
         Ok(run) => run,
         Err(Failure::Usage(message)) => return fail(message),
@@ -238,7 +238,7 @@ impl From<Diagnostic> for Failure {
 }
 
 /// The command's options as `ScanOptions`, and the scan.
-fn compute(
+fn scan_from_arguments(
     args: &BrouwerArgs,
     model: &Model,
     fixed_po2: Option<f64>,
