@@ -109,18 +109,21 @@ impl std::fmt::Display for Diagnostics {
 
 impl std::error::Error for Diagnostics {}
 
-/// Reads one reaction (plain, Unicode or LaTeX notation); the diagnostics
-/// are errors when the reaction did not parse.
+/// Reads one reaction (plain, Unicode or LaTeX notation) through the one
+/// reader every command uses; the diagnostics are the reasons when it does
+/// not read.
 ///
 /// ```
+/// use lacuna::notation::{Style, render_reaction};
 /// let r = lacuna::parse_reaction("nil -> e' + h.").unwrap();
-/// assert_eq!(lacuna::notation::render_reaction(&r, lacuna::notation::Style::Unicode), "∅ → e′ + h•");
+/// assert_eq!(render_reaction(&r, Style::Unicode), "∅ → e′ + h•");
+/// // Pasted from a manuscript: the same reaction.
+/// let latex = lacuna::parse_reaction(r"\emptyset \rightarrow e^{\prime} + h^{\bullet}").unwrap();
+/// assert_eq!(render_reaction(&latex, Style::Unicode), "∅ → e′ + h•");
 /// ```
 pub fn parse_reaction(text: &str) -> Result<Reaction, Diagnostics> {
-    match notation::parse_reaction(text, 0..text.len()) {
-        (Some(r), _) => Ok(r),
-        (None, diags) => Err(Diagnostics(diags)),
-    }
+    let read = file::reader::read_reaction(text, 0..text.len());
+    read.reaction.ok_or(Diagnostics(read.diagnostics))
 }
 
 /// What checking a source found: one report per reaction line and the
@@ -139,6 +142,19 @@ impl Checked {
     /// Whether every reaction passed and no error was reported.
     pub fn ok(&self) -> bool {
         self.summary.clean()
+    }
+
+    /// Every diagnostic, of reactions and of other lines, in line and
+    /// column order.
+    pub fn diagnostics(&self) -> impl Iterator<Item = &Diagnostic> {
+        let mut all: Vec<&Diagnostic> = self
+            .reactions
+            .iter()
+            .flat_map(|r| &r.diagnostics)
+            .chain(self.line_problems.iter().map(|(_, d)| d))
+            .collect();
+        all.sort_by_key(|d| (d.line, d.column));
+        all.into_iter()
     }
 }
 
