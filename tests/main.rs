@@ -17,6 +17,7 @@ mod hostile;
 mod laws;
 mod layers;
 mod lint_cli;
+mod measurement_fixtures;
 mod model_grammar;
 mod native;
 mod pipes;

@@ -178,11 +178,19 @@ pub fn read_measurements(text: &str, source: &str) -> Result<Measurements, Vec<D
                 break;
             }
         }
-        let line = record
+        let mut line = record
             .position()
             .map_or(0, |p| u32::try_from(p.line()).unwrap_or(u32::MAX));
         if record.iter().all(str::is_empty) {
             continue;
+        }
+        // The reader's position is where it began looking, before the
+        // blank and comment lines it skipped: the record starts after them.
+        while (line as usize) < lines.len() && {
+            let skipped = line_text(line).trim_start();
+            skipped.is_empty() || skipped.starts_with('#')
+        } {
+            line = line.saturating_add(1);
         }
         let raw = line_text(line);
         let span = |i: usize| field_span(raw, delimiter, i);

@@ -78,6 +78,7 @@ pub struct Isotherm {
 /// A measurement file, read.
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct Measurements {
     pub source: String,
     pub temperature_column: String,
@@ -91,6 +92,7 @@ pub struct Measurements {
 
 /// Choices of the analysis.
 #[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
 pub struct FitOptions {
     /// Regime whose exponents the decomposition uses (by name).
     pub regime: Option<String>,
@@ -190,6 +192,7 @@ pub struct DataPoint {
 
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct IsothermReport {
     pub label: String,
     pub temperature_k: f64,
@@ -238,6 +241,7 @@ pub struct Constants {
 
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[non_exhaustive]
 pub struct FitReport {
     pub source: String,
     pub columns: Vec<String>,
