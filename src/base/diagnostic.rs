@@ -212,6 +212,8 @@ codes! {
         "`law` writes no mass-action law for a reaction that fails its balance or validity checks, because that law would be wrong. The problems are reported on the same line.";
     FitModel = "F906", Error, "model unfit for a fit",
         "`fit --model` compares measured slopes with the exact regimes of a defect model. The model must exchange O2(g) and hold electrons, holes and a charged ionic defect that no `fix` line holds, since the fit splits the conductivity into an ionic, an n and a p term.";
+    HostFromArrow = "T806", Note, "host from over the arrow",
+        "No host was in force, so the formula written over the reaction's arrow (`\\xrightarrow{\\mathrm{ZrO_2}}`) is taken as the host, for this line and the lines after it, as a `host` line would be. A `host` line or `--host` makes the choice explicit.";
 }
 
 impl fmt::Display for Code {

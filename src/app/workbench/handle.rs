@@ -143,12 +143,8 @@ impl Session {
         let analysis = analyse(line, span.clone(), self.host.as_ref());
         let comment = reader::comment(line).map(str::to_string);
         let label = label.map(|l| line[l].to_string());
+        // The reading's note (T806) says so, as every command does.
         if let Some(slot) = &analysis.host_from_arrow {
-            writeln!(
-                out,
-                "host {} taken from over the arrow",
-                self.palette.strong(&slot.spec)
-            )?;
             self.host = Some(slot.clone());
         }
         let Some(reaction) = analysis.reaction.clone() else {

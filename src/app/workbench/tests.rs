@@ -149,7 +149,11 @@ fn the_host_over_the_arrow_is_used_or_compared() {
         &mut s,
         r"\mathrm{Y_2O_3} \xrightarrow{\mathrm{ZrO_2}} 2\,\mathrm{Y}_{\mathrm{Zr}}^{\prime} + V_{\mathrm{O}}^{\bullet\bullet} + 3\,\mathrm{O}_{\mathrm{O}}^{\times}",
     );
-    assert!(out.contains("host ZrO2 taken from over the arrow"), "{out}");
+    assert!(out.contains("note[T806]"), "{out}");
+    assert!(
+        out.contains("checked against ZrO2, written over its arrow"),
+        "{out}"
+    );
     assert!(out.contains("✓ balanced"), "{out}");
     let out = run(
         &mut s,

@@ -74,6 +74,16 @@ pub fn check_line<H: HostHandle>(
     let from_latex = read.from_latex();
     let mut diagnostics = read.diagnostics;
     diagnostics.extend(chosen.warning.iter().cloned());
+    if let (Some((_, spec)), Some((_, span))) = (&chosen.taken, &read.over_arrow) {
+        diagnostics.push(
+            Diagnostic::new(
+                Code::HostFromArrow,
+                span.clone(),
+                format!("no host was set: the reaction is checked against {spec}, written over its arrow"),
+            )
+            .with_help("a `host` line or --host makes the host explicit"),
+        );
+    }
     let verdict = read
         .reaction
         .as_ref()
