@@ -57,8 +57,9 @@
 //! defect model; `solve` finds the Brouwer regimes and the full
 //! equilibrium; `fit` goes from measurements back to mechanisms; `report`
 //! writes results for people and machines; `typeset` writes reactions for
-//! manuscripts. `app` (the command line and the workbench) is a doorway
-//! over all of it and no part of the library's interface.
+//! manuscripts. The command line and the workbench live in the `lacuna`
+//! binary (`src/main.rs` and `src/app/`), doorways over all of it that use
+//! only what this page offers; they are no part of the library.
 
 pub mod balance;
 pub mod base;
@@ -72,10 +73,6 @@ pub mod notation;
 pub mod report;
 pub mod solve;
 pub mod typeset;
-
-#[cfg(feature = "cli")]
-#[doc(hidden)]
-pub mod app;
 
 pub use base::diagnostic::Diagnostic;
 pub use model::builder::ModelBuilder;

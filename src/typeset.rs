@@ -175,7 +175,7 @@ pub fn escape_markdown(text: &str) -> String {
     out
 }
 
-// Integration point for mass-action laws (src/law.rs): a law is a product of
+// Integration point for mass-action laws (src/model/law.rs): a law is a product of
 // concentrations and partial pressures raised to exact powers, equal to a
 // constant. These primitives write those pieces in every form, so the law
 // module composes `[V_O••][e′]² p(O₂)^½ = K` without knowing any markup.

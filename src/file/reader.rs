@@ -331,6 +331,18 @@ pub trait HostHandle: Clone {
     fn from_arrow(host: Host, over: &str) -> Self;
 }
 
+/// A shared handle to a front-end's own host record (the workbench keeps
+/// the host's specification beside it).
+impl<T: HostHandle> HostHandle for std::rc::Rc<T> {
+    fn host(&self) -> &Host {
+        T::host(self)
+    }
+
+    fn from_arrow(host: Host, over: &str) -> Self {
+        std::rc::Rc::new(T::from_arrow(host, over))
+    }
+}
+
 impl HostHandle for Arc<Host> {
     fn host(&self) -> &Host {
         self

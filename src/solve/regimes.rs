@@ -395,6 +395,20 @@ fn consistent_interval(
     (hi > lo).then_some((lo, hi))
 }
 
+/// Every regime with its exact power laws but no pO2 range (`from` and
+/// `to` are NaN): what a model without K values can still show.
+pub fn unordered_regimes(model: &Model) -> Result<Vec<Regime>, Diagnostic> {
+    Ok(all_regimes(model)?
+        .into_iter()
+        .map(|(dominance, laws)| Regime {
+            dominance,
+            laws,
+            from: f64::NAN,
+            to: f64::NAN,
+        })
+        .collect())
+}
+
 /// Every dominance with its exact power laws (singular ones left out).
 pub fn all_regimes(model: &Model) -> Result<Vec<(Dominance, PowerLaws)>, Diagnostic> {
     let mut out = Vec::new();

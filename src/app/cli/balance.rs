@@ -4,14 +4,14 @@
 
 use super::shared::output_failed;
 use super::shared::{ColorChoice, NotationStyle, OutputFormat, fail, host_argument, print_json};
-use crate::balance::checked::check_and_balance;
-use crate::balance::{Balancing, Status};
-use crate::base::diagnostic::Diagnostic;
-use crate::host::Host;
-use crate::notation::parse_reaction;
-use crate::report::balance::write_outcome;
-use crate::report::{Palette, human::write_diagnostic};
 use clap::Args;
+use lacuna::balance::checked::check_and_balance;
+use lacuna::balance::{Balancing, Status};
+use lacuna::base::diagnostic::Diagnostic;
+use lacuna::host::Host;
+use lacuna::notation::parse_reaction;
+use lacuna::report::balance::write_outcome;
+use lacuna::report::{Palette, human::write_diagnostic};
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -46,7 +46,7 @@ pub struct BalanceArgs {
     pub color: ColorChoice,
 }
 
-use crate::report::results::balance::balance_json;
+use lacuna::report::results::balance::balance_json;
 
 pub fn run(args: &BalanceArgs) -> ExitCode {
     let Some(text) = args.positional.as_ref().or(args.reaction.as_ref()) else {
@@ -61,7 +61,7 @@ pub fn run(args: &BalanceArgs) -> ExitCode {
     };
     if host
         .as_ref()
-        .is_some_and(|h| !crate::balance::build::has_sites(h))
+        .is_some_and(|h| !lacuna::balance::build::has_sites(h))
     {
         return fail("the --host value has a sublattice with no sites (a zero count)");
     }

@@ -2,10 +2,10 @@
 //! folders, stdin and inline reactions.
 
 use super::shared::{ColorChoice, fail, host_argument, output_failed, reaction_files};
-use crate::check::rules::{RuleLevel, RuleLevels, find_config};
-use crate::file::runner::{Runner, Sink};
-use crate::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
 use clap::{Args, ValueEnum};
+use lacuna::check::rules::{RuleLevel, RuleLevels, find_config};
+use lacuna::file::runner::{Runner, Sink};
+use lacuna::report::{gnu::GnuSink, human::HumanSink, json::JsonSink, sarif::SarifSink};
 use std::cell::Cell;
 use std::fs::File;
 use std::io::{self, BufReader, BufWriter, Write};

@@ -6,18 +6,18 @@
 use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::number::{self, Q};
-use crate::base::text::{pad, width};
-use crate::generate::dope::compound_text;
-use crate::generate::dope::level::{self, Composition, DopantLevel, Volume};
-use crate::generate::dope::{Dopant, DopeOptions, Report, mechanisms, parse_dopant, parse_site};
-use crate::host::Host;
-use crate::report::dope::{TableInput, write_report};
-use crate::report::human::write_diagnostic;
-use crate::report::results::dope::{DopeInput, dope_json};
-use crate::solve::scan::composition_note;
 use clap::Args;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::base::number::{self, Q};
+use lacuna::base::text::{pad, width};
+use lacuna::generate::dope::compound_text;
+use lacuna::generate::dope::level::{self, Composition, DopantLevel, Volume};
+use lacuna::generate::dope::{Dopant, DopeOptions, Report, mechanisms, parse_dopant, parse_site};
+use lacuna::host::Host;
+use lacuna::report::dope::{TableInput, write_report};
+use lacuna::report::human::write_diagnostic;
+use lacuna::report::results::dope::{DopeInput, dope_json};
+use lacuna::solve::scan::composition_note;
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -70,7 +70,7 @@ pub struct DopeArgs {
 /// Prints located diagnostics of an argument to stderr; exit code 2.
 fn argument_error(name: &str, text: &str, d: &Diagnostic) -> ExitCode {
     let mut err = io::stderr();
-    let _ = write_diagnostic(&mut err, crate::report::Palette::PLAIN, name, text, d);
+    let _ = write_diagnostic(&mut err, lacuna::report::Palette::PLAIN, name, text, d);
     fail(format!("the {name} value is not usable"))
 }
 
@@ -97,7 +97,7 @@ pub fn run(args: &DopeArgs) -> ExitCode {
         }
     }
     for cn in &args.cn {
-        match crate::generate::dope::structure::parse_override(cn, &host) {
+        match lacuna::generate::dope::structure::parse_override(cn, &host) {
             Ok(o) => options.coordination.push(o),
             Err(d) => return argument_error("--cn", cn, &d),
         }

@@ -1,9 +1,9 @@
 //! `lacuna explain`: what a diagnostic code means.
 
 use super::shared::{fail, finish, stdout};
-use crate::base::diagnostic::Code;
-use crate::check::rules::rule_name;
 use clap::Args;
+use lacuna::base::diagnostic::Code;
+use lacuna::check::rules::rule_name;
 use std::io::{self, Write};
 use std::process::ExitCode;
 

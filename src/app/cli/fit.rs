@@ -1,21 +1,20 @@
 //! `lacuna fit`: conductivity versus pO2 and temperature, back to defect
-//! regimes. Reads a measurement CSV, runs `crate::fit::analyse`, writes the
+//! regimes. Reads a measurement CSV, runs `lacuna::fit::analyse`, writes the
 //! table or JSON to stdout and, on request, fitted curves (CSV) and a plot
 //! (SVG) to files.
 
 use super::model_input::{gather, print_diagnostics};
 use super::shared::output_failed;
 use super::shared::{ColorChoice, fail};
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::fit::arrhenius::ArrheniusForm;
-use crate::fit::regimes::ModelRegimes;
-use crate::fit::segment::SegmentOptions;
-use crate::fit::{FitError, FitOptions, analyse, csv_input};
-use crate::model::{self, Model, Overrides};
-use crate::report::Palette;
-use crate::report::results::fit::fit_failure;
-use crate::report::{fit as report, svg};
 use clap::{Args, ValueEnum};
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::fit::arrhenius::ArrheniusForm;
+use lacuna::fit::regimes::ModelRegimes;
+use lacuna::fit::{FitError, FitOptions, analyse, csv_input};
+use lacuna::model::{self, Model, Overrides};
+use lacuna::report::Palette;
+use lacuna::report::results::fit::fit_failure;
+use lacuna::report::{fit as report, svg};
 use std::io::{self, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -129,24 +128,20 @@ pub fn run(args: &FitArgs) -> ExitCode {
         Ok(m) => m,
         Err(diagnostics) => return data_problems(args, &source, &text, &diagnostics),
     };
-    let options = FitOptions {
-        regime: args.regime.clone(),
-        confidence: args.confidence,
-        segments: SegmentOptions {
-            min_points: args.min_points,
-            max_segments: args.max_segments,
-            confidence: args.confidence,
-        },
-        arrhenius: match args.arrhenius {
-            ArrheniusChoice::SigmaT => ArrheniusForm::SigmaT,
-            ArrheniusChoice::Sigma => ArrheniusForm::Sigma,
-        },
-        electron_mobility_ea: args.electron_mobility_ea,
-        hole_mobility_ea: args.hole_mobility_ea,
-        ion_mobility_ea: args.ion_mobility_ea,
-        rms_limit: args.rms_limit,
-        ..FitOptions::default()
+    let mut options = FitOptions::default();
+    options.regime = args.regime.clone();
+    options.confidence = args.confidence;
+    options.segments.min_points = args.min_points;
+    options.segments.max_segments = args.max_segments;
+    options.segments.confidence = args.confidence;
+    options.arrhenius = match args.arrhenius {
+        ArrheniusChoice::SigmaT => ArrheniusForm::SigmaT,
+        ArrheniusChoice::Sigma => ArrheniusForm::Sigma,
     };
+    options.electron_mobility_ea = args.electron_mobility_ea;
+    options.hole_mobility_ea = args.hole_mobility_ea;
+    options.ion_mobility_ea = args.ion_mobility_ea;
+    options.rms_limit = args.rms_limit;
     let report = match analyse(&measurements, regimes.as_ref(), &options) {
         Ok(r) => r,
         Err(FitError::Usage(m)) => return fail(m),
@@ -256,7 +251,7 @@ fn data_problems(args: &FitArgs, source: &str, text: &str, diagnostics: &[Diagno
             .get((d.line as usize).saturating_sub(1))
             .copied()
             .unwrap_or("");
-        let _ = crate::report::human::write_diagnostic(&mut stderr, palette, source, line_text, d);
+        let _ = lacuna::report::human::write_diagnostic(&mut stderr, palette, source, line_text, d);
     }
     let count = diagnostics.len();
     let _ = writeln!(

@@ -1,9 +1,9 @@
 //! `lacuna fmt`: rewrite reaction files in the canonical layout.
 
 use super::shared::{output_failed, reaction_files, stdout};
-use crate::file::layout::{MarkSpelling, format_text};
-use crate::report::{Palette, human::write_diagnostic};
 use clap::{Args, ValueEnum};
+use lacuna::file::layout::{MarkSpelling, format_text};
+use lacuna::report::{Palette, human::write_diagnostic};
 use std::io::{self, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;

@@ -4,14 +4,14 @@
 use super::model_input::{Source, gather, print_diagnostics};
 use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
-use crate::base::diagnostic::Diagnostic;
-use crate::model::laws::{LawEntry, document_laws, document_neutrality};
-use crate::model::thermo;
-use crate::model::{self, Document};
-use crate::notation::Style;
-use crate::report::law::write_law_text;
-use crate::report::results::law::law_report;
 use clap::{Args, ValueEnum};
+use lacuna::base::diagnostic::Diagnostic;
+use lacuna::model::laws::{LawEntry, document_laws, document_neutrality};
+use lacuna::model::thermo;
+use lacuna::model::{self, Document};
+use lacuna::notation::Style;
+use lacuna::report::law::write_law_text;
+use lacuna::report::results::law::law_report;
 use std::io::{self, BufWriter, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -90,7 +90,7 @@ pub fn run(args: &LawArgs) -> ExitCode {
         all.sort_by_key(|d| {
             (
                 d.line,
-                d.severity == crate::base::diagnostic::Severity::Note,
+                d.severity == lacuna::base::diagnostic::Severity::Note,
                 d.column,
             )
         });
@@ -129,7 +129,7 @@ pub fn run(args: &LawArgs) -> ExitCode {
     }
 }
 
-fn read_source(source: &Source, host: Option<crate::host::Host>) -> (Document, Vec<Diagnostic>) {
+fn read_source(source: &Source, host: Option<lacuna::host::Host>) -> (Document, Vec<Diagnostic>) {
     let doc = model::read(&source.name, &source.text, host);
     let mut diags = doc.diagnostics.clone();
     diags.extend(model::label_problems(&doc));

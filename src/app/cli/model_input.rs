@@ -2,8 +2,8 @@
 //! printing their diagnostics.
 
 use super::shared::fail;
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::report::{Palette, human};
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::report::{Palette, human};
 use std::io::{self, Read, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;

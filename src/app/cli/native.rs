@@ -3,13 +3,13 @@
 use super::shared::output_failed;
 use super::shared::{ColorChoice, host_argument};
 use super::shared::{NotationStyle, OutputFormat, print_json};
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::text;
-use crate::generate::native::catalogue;
-use crate::notation::render_reaction;
-use crate::report::human::write_diagnostic;
-use crate::report::results::native::native_json;
 use clap::Args;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::base::text;
+use lacuna::generate::native::catalogue;
+use lacuna::notation::render_reaction;
+use lacuna::report::human::write_diagnostic;
+use lacuna::report::results::native::native_json;
 use std::io::{self, Write};
 use std::process::ExitCode;
 
@@ -60,7 +60,7 @@ pub fn run(args: &NativeArgs) -> ExitCode {
         .with_help(
             "state integer charges with `sites` (e.g. Fe:B +2 x1, Fe:C +3 x1) to include them",
         );
-        d.severity = crate::base::diagnostic::Severity::Warning;
+        d.severity = lacuna::base::diagnostic::Severity::Warning;
         diagnostics.push(d.locate(1, &args.host));
     }
     if catalogue.reactions.is_empty() {

@@ -5,9 +5,9 @@
 use super::shared::{ColorChoice, fail, output_failed};
 use crate::app::workbench::Session;
 use crate::app::workbench::driver::{self, TerminalOptions};
-use crate::report::Palette;
-use crate::report::human::write_diagnostic;
 use clap::Args;
+use lacuna::report::Palette;
+use lacuna::report::human::write_diagnostic;
 use std::io::{self, IsTerminal, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;

@@ -2,10 +2,10 @@
 //! (usage errors, and output that cannot be written: a closed pipe or a
 //! full disk), `--host` values and the folder search.
 
-use crate::host::Host;
-use crate::notation::Style;
-use crate::report::Palette;
 use clap::ValueEnum;
+use lacuna::host::Host;
+use lacuna::notation::Style;
+use lacuna::report::Palette;
 use std::io::{self, IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -134,7 +134,7 @@ pub fn reaction_files(folder: &Path) -> (Vec<PathBuf>, bool) {
                 if entry.file_type().is_some_and(|t| t.is_file())
                     && path
                         .extension()
-                        .is_some_and(|e| e == crate::file::reader::EXTENSION)
+                        .is_some_and(|e| e == lacuna::file::reader::EXTENSION)
                 {
                     files.push(path.to_path_buf());
                 }
@@ -155,7 +155,7 @@ pub fn host_argument(spec: &str) -> Result<Host, ExitCode> {
         let mut stderr = io::stderr();
         for d in diagnostics {
             let d = d.locate(1, spec);
-            let _ = crate::report::human::write_diagnostic(
+            let _ = lacuna::report::human::write_diagnostic(
                 &mut stderr,
                 Palette::PLAIN,
                 "--host",

@@ -5,17 +5,17 @@
 
 use super::shared::output_failed;
 use super::shared::{ColorChoice, fail, host_argument};
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::check::Verdict;
-use crate::file::reader::{self, HostTracker, Line, numbered_lines};
-use crate::file::runner::check_line;
-use crate::host::Host;
-use crate::notation::latex_input::{self, looks_like_latex};
-use crate::notation::parse_species_text;
-use crate::report::Palette;
-use crate::report::human::write_diagnostic;
-use crate::typeset::{self, ArrowHost, Form};
 use clap::{Args, ValueEnum};
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::check::Verdict;
+use lacuna::file::reader::{self, HostTracker, Line, numbered_lines};
+use lacuna::file::runner::check_line;
+use lacuna::host::Host;
+use lacuna::notation::latex_input::{self, looks_like_latex};
+use lacuna::notation::parse_species_text;
+use lacuna::report::Palette;
+use lacuna::report::human::write_diagnostic;
+use lacuna::typeset::{self, ArrowHost, Form};
 use std::io::{self, IsTerminal, Read, Write};
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -179,6 +179,8 @@ impl Run<'_> {
                     let label = label.map(|l| &line[l]);
                     self.reaction(name, line, number, label, reaction, &mut hosts)?;
                 }
+                // Other lines hold nothing to typeset.
+                _ => {}
             }
         }
         Ok(())

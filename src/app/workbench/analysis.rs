@@ -4,11 +4,11 @@
 
 use super::args::SIGIL;
 use super::session::HostSlot;
-use crate::base::diagnostic::Diagnostic;
-use crate::check::Verdict;
-use crate::file::reader::HostTracker;
-use crate::file::runner::check_line;
-use crate::notation::{ARROWS, Reaction, Span, Style, render_reaction};
+use lacuna::base::diagnostic::Diagnostic;
+use lacuna::check::Verdict;
+use lacuna::file::reader::HostTracker;
+use lacuna::file::runner::check_line;
+use lacuna::notation::{ARROWS, Reaction, Span, Style, render_reaction};
 use std::rc::Rc;
 
 /// What checking one reaction line found.

@@ -4,8 +4,8 @@
 
 use super::commands::COMMANDS;
 use super::session::Session;
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::notation::Span;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::notation::Span;
 use std::io::{self, Write};
 
 /// The sigil that starts a command.

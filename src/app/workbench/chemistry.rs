@@ -3,40 +3,40 @@
 //!
 //! In: the session (its host, reactions and the model lines kept from
 //! loaded files) and the command's words. Out: `/balance WHICH` balances a
-//! session reaction (`crate::balance`) and offers a unique answer for
+//! session reaction (`lacuna::balance`) and offers a unique answer for
 //! `/take`; `/dope OXIDE [SITE]` ranks the incorporation mechanisms in the
-//! session's host (`crate::generate::dope`); `/law [WHICH...]` writes mass-action laws
-//! (`crate::model::laws`, the path `lacuna law` takes, over the session's
-//! reactions and kept model lines given to `crate::model::builder`);
+//! session's host (`lacuna::generate::dope`); `/law [WHICH...]` writes mass-action laws
+//! (`lacuna::model::laws`, the path `lacuna law` takes, over the session's
+//! reactions and kept model lines given to `lacuna::model::builder`);
 //! `/brouwer [WHICH...]`
 //! builds a model of the chosen reactions and the kept model lines
-//! (`crate::model::builder`; nothing is written out and read back) and
+//! (`lacuna::model::builder`; nothing is written out and read back) and
 //! prints its exact regimes
-//! (`crate::solve::regimes`), ordered along pO2 when K values and a temperature
+//! (`lacuna::solve::regimes`), ordered along pO2 when K values and a temperature
 //! allow it, else every regime with the plain statement that K values are
 //! needed to order them.
 
 use super::store::file_text_with_lines;
 use super::{Args, Failure, Offer, Session};
-use crate::balance::Status;
-use crate::balance::checked::check_and_balance;
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::base::number::Q;
-use crate::file::reader::{Line as ReaderLine, classify};
-use crate::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
-use crate::host::Host;
-use crate::model::builder::ModelBuilder;
-use crate::model::law::FactorKind;
-use crate::model::laws::document_laws;
-use crate::model::thermo::temperature_text;
-use crate::model::{Document, Overrides};
-use crate::notation::{Span, Style, parse_reaction, render_reaction};
-use crate::report::balance::write_outcome;
-use crate::report::dope::{TableInput, write_report};
-use crate::report::human::write_diagnostic;
-use crate::report::law::write_law_text;
-use crate::report::regimes::{Along, regimes_table};
-use crate::solve::regimes::{self, Regime, Sweep};
+use lacuna::balance::Status;
+use lacuna::balance::checked::check_and_balance;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::base::number::Q;
+use lacuna::file::reader::{Line as ReaderLine, classify};
+use lacuna::generate::dope::{DopeOptions, mechanisms, parse_dopant, parse_site};
+use lacuna::host::Host;
+use lacuna::model::builder::ModelBuilder;
+use lacuna::model::law::FactorKind;
+use lacuna::model::laws::document_laws;
+use lacuna::model::thermo::temperature_text;
+use lacuna::model::{Document, Overrides};
+use lacuna::notation::{Span, Style, parse_reaction, render_reaction};
+use lacuna::report::balance::write_outcome;
+use lacuna::report::dope::{TableInput, write_report};
+use lacuna::report::human::write_diagnostic;
+use lacuna::report::law::write_law_text;
+use lacuna::report::regimes::{Along, regimes_table};
+use lacuna::solve::regimes::{self, Sweep};
 use std::io::Write;
 
 /// A diagnostic of an argument's own text (located on line 1 of it) moved
@@ -152,6 +152,8 @@ pub(super) fn balance(
         }
         Status::Several => {}
         Status::None => session.problems += 1,
+        // A status this build does not know offers nothing.
+        _ => {}
     }
     Ok(())
 }
@@ -400,17 +402,8 @@ pub(super) fn brouwer(
             write!(out, "{}", regimes_table(&model, &regimes, Along::Po2))?;
         }
         Err(why) => {
-            let regimes: Vec<Regime> = regimes::all_regimes(&model)
-                .map_err(located)?
-                .into_iter()
-                .map(|(dominance, laws)| Regime {
-                    dominance,
-                    laws,
-                    // Not known without K: the unordered table shows no range.
-                    from: f64::NAN,
-                    to: f64::NAN,
-                })
-                .collect();
+            // Not known without K: the unordered table shows no range.
+            let regimes = regimes::unordered_regimes(&model).map_err(located)?;
             if regimes.is_empty() {
                 writeln!(
                     out,

@@ -5,10 +5,10 @@
 //! completion and hints pick it up from the table.
 
 use super::{ArgKind, Args, CommandSpec, Failure, HostSlot, SIGIL, Session, style_of};
-use crate::base::text;
-use crate::host::Host;
-use crate::notation::{Entity, Style, render_reaction, render_term};
-use crate::typeset::{self, Form};
+use lacuna::base::text;
+use lacuna::host::Host;
+use lacuna::notation::{Entity, Style, render_reaction, render_term};
+use lacuna::typeset::{self, Form};
 use std::collections::BTreeMap;
 use std::io::Write;
 
@@ -394,13 +394,13 @@ fn check(session: &mut Session, args: &Args<'_>, out: &mut dyn Write) -> Result<
         let source = format!("reaction {}", i + 1);
         for d in &analysis.diagnostics {
             let d = d.clone().locate(1, &line);
-            crate::report::human::write_diagnostic(out, p, &source, &line, &d)?;
+            lacuna::report::human::write_diagnostic(out, p, &source, &line, &d)?;
         }
         if let Some(v) = &analysis.verdict {
             let b = v.balance;
             if !b.mass || !b.charge || b.site == Some(false) {
                 let host = session.entries[i].host.as_ref().map(|h| &h.host);
-                crate::report::human::write_table(out, p, &v.table, host, b.site)?;
+                lacuna::report::human::write_table(out, p, &v.table, host, b.site)?;
             }
         }
     }
@@ -419,7 +419,7 @@ fn species(session: &mut Session, _args: &Args<'_>, out: &mut dyn Write) -> Resu
                 continue;
             }
             let mut bare = term.clone();
-            bare.coefficient = crate::base::number::int(1);
+            bare.coefficient = lacuna::base::number::int(1);
             let text = render_term(&bare, Style::Unicode);
             let uses = seen.entry(text).or_default();
             if !uses.contains(&(i + 1)) {

@@ -8,8 +8,8 @@
 
 use super::Session;
 use super::helper::WorkbenchHelper;
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::report::human::write_diagnostic;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::report::human::write_diagnostic;
 use rustyline::config::{ColorMode, CompletionType, Config};
 use rustyline::error::ReadlineError;
 use rustyline::history::DefaultHistory;

@@ -5,12 +5,12 @@
 use super::analysis::{Analysis, analyse, logical_lines};
 use super::args::{Args, Failure, SIGIL, closest_command, find_command};
 use super::session::{Entry, Offer, Session};
-use crate::base::diagnostic::{Code, Diagnostic, Severity};
-use crate::check::Verdict;
-use crate::file::reader::{self, Line};
-use crate::notation::{Entity, Reaction, Span, Style, render_reaction};
-use crate::report::Palette;
-use crate::report::human::{write_diagnostic, write_table};
+use lacuna::base::diagnostic::{Code, Diagnostic, Severity};
+use lacuna::check::Verdict;
+use lacuna::file::reader::{self, Line};
+use lacuna::notation::{Entity, Reaction, Span, Style, render_reaction};
+use lacuna::report::Palette;
+use lacuna::report::human::{write_diagnostic, write_table};
 use std::io::{self, Write};
 
 impl Session {
@@ -68,6 +68,8 @@ impl Session {
             Line::Reaction { label, reaction } => {
                 self.enter_reaction(line, label, reaction, number, out)
             }
+            // Other lines leave the session as it is.
+            _ => Ok(()),
         }
     }
 
@@ -368,7 +370,7 @@ pub(crate) fn is_wrong(analysis: &Analysis) -> bool {
 
 /// What a term is, ignoring its coefficient and charges: the skeleton a
 /// correction keeps.
-pub(crate) fn skeleton_of(term: &crate::notation::Term) -> String {
+pub(crate) fn skeleton_of(term: &lacuna::notation::Term) -> String {
     match &term.entity {
         Entity::Species(s) => {
             let mut key = s.key();
@@ -382,13 +384,14 @@ pub(crate) fn skeleton_of(term: &crate::notation::Term) -> String {
         }
         Entity::Compound(c) => format!("{:?}{:?}", c.formula.atoms, c.phase),
         Entity::Nil => "nil".to_string(),
+        other => format!("{other:?}"),
     }
 }
 
 /// Whether `new` looks like a correction of `old`: one side the same and
 /// the other the same give or take terms (charges and coefficients aside).
 pub(crate) fn corrects(old: &Reaction, new: &Reaction) -> bool {
-    let side = |terms: &[crate::notation::Term]| {
+    let side = |terms: &[lacuna::notation::Term]| {
         let mut s: Vec<String> = terms.iter().map(skeleton_of).collect();
         s.sort();
         s

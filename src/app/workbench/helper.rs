@@ -9,10 +9,10 @@
 //! characters in escape sequences, so the display width never changes.
 
 use super::{ArgKind, COMMANDS, SIGIL, Vocabulary, continues, find_command};
-use crate::base::elements;
-use crate::file::reader::{self, Line};
-use crate::notation::arrow_at;
-use crate::typeset::Form;
+use lacuna::base::elements;
+use lacuna::file::reader::{self, Line};
+use lacuna::notation::arrow_at;
+use lacuna::typeset::Form;
 use rustyline::completion::{Completer, FilenameCompleter, Pair};
 use rustyline::highlight::{CmdKind, Highlighter};
 use rustyline::hint::{Hint, Hinter, HistoryHinter};
@@ -492,7 +492,7 @@ pub fn highlight_line(line: &str) -> String {
 }
 
 /// The number of characters of an arrow of the one arrow table
-/// (`crate::notation::ARROWS`) that starts at character `k`, within bytes `..to`.
+/// (`lacuna::notation::ARROWS`) that starts at character `k`, within bytes `..to`.
 fn arrow_here(chars: &[(usize, char)], k: usize, to: usize) -> Option<usize> {
     let first = chars.get(k)?.1;
     let mut buffer = [0u8; 4];

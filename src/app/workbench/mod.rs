@@ -27,11 +27,11 @@ mod session;
 mod store;
 
 pub(crate) use analysis::analyse_in;
-pub use analysis::{Analysis, analyse, continues, logical_lines};
-pub use args::{ArgKind, Args, CommandSpec, Failure, Handler, SIGIL, find_command};
+pub use analysis::continues;
+pub use args::{ArgKind, Args, CommandSpec, Failure, SIGIL, find_command};
 pub use commands::COMMANDS;
 pub(crate) use handle::{is_wrong, verdict_text};
-pub use session::{BalanceHook, Entry, HostSlot, Session, Vocabulary};
+pub use session::{Entry, HostSlot, Session, Vocabulary};
 pub(crate) use session::{Offer, OwnFile, style_of};
 
 #[cfg(test)]

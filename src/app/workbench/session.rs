@@ -2,11 +2,11 @@
 //! it reads from and writes to, the balanced form on offer, and what the
 //! editor completes.
 
-use crate::base::diagnostic::Diagnostic;
-use crate::file::reader::HostHandle;
-use crate::host::Host;
-use crate::notation::{Entity, MarkStyle, Reaction, Style, render_term};
-use crate::report::Palette;
+use lacuna::base::diagnostic::Diagnostic;
+use lacuna::file::reader::HostHandle;
+use lacuna::host::Host;
+use lacuna::notation::{Entity, MarkStyle, Reaction, Style, render_term};
+use lacuna::report::Palette;
 use std::path::PathBuf;
 use std::rc::Rc;
 use std::time::SystemTime;
@@ -16,7 +16,7 @@ use std::time::SystemTime;
 pub type BalanceHook = fn(&Reaction, Option<&Host>) -> Option<Reaction>;
 
 /// The exact balancer offers the balanced form of a reaction that does not balance.
-const BALANCER: Option<BalanceHook> = Some(crate::balance::balanced_form);
+const BALANCER: Option<BalanceHook> = Some(lacuna::balance::balanced_form);
 
 /// A host the session knows: its specification as written and the parsed host.
 #[derive(Debug, Clone, PartialEq)]
@@ -37,13 +37,13 @@ impl HostSlot {
     }
 }
 
-impl HostHandle for Rc<HostSlot> {
+impl HostHandle for HostSlot {
     fn host(&self) -> &Host {
         &self.host
     }
 
     fn from_arrow(host: Host, over: &str) -> Self {
-        HostSlot::new(over, host)
+        Rc::unwrap_or_clone(HostSlot::new(over, host))
     }
 }
 
@@ -172,12 +172,14 @@ impl Session {
         }
     }
 
-    /// Uses `hook` to offer balanced forms (tests and the integrator).
+    /// Uses `hook` to offer balanced forms instead of the balancer.
+    #[cfg(test)]
     pub fn with_balancer(mut self, hook: BalanceHook) -> Session {
         self.balancer = Some(hook);
         self
     }
 
+    #[cfg(test)]
     pub fn entries(&self) -> &[Entry] {
         &self.entries
     }
@@ -234,7 +236,7 @@ impl Session {
                     continue;
                 }
                 let mut bare = term.clone();
-                bare.coefficient = crate::base::number::int(1);
+                bare.coefficient = lacuna::base::number::int(1);
                 let written = render_term(&bare, style);
                 if !v.species.contains(&written) {
                     v.species.push(written);

@@ -9,12 +9,12 @@
 //! reactions that do not parse) are kept in place and written back.
 
 use super::{Args, Entry, Failure, HostSlot, OwnFile, Session, analyse_in};
-use crate::base::diagnostic::{Code, Diagnostic};
-use crate::check::Verdict;
-use crate::file::reader::{self, HostTracker, Line};
-use crate::host::Host;
-use crate::report::human::write_diagnostic;
 use atomic_write_file::AtomicWriteFile;
+use lacuna::base::diagnostic::{Code, Diagnostic};
+use lacuna::check::Verdict;
+use lacuna::file::reader::{self, HostTracker, Line};
+use lacuna::host::Host;
+use lacuna::report::human::write_diagnostic;
 use std::fs;
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
@@ -111,7 +111,6 @@ pub(super) fn load(
             }
         };
         match reader::classify(&line) {
-            Line::Blank | Line::Comment | Line::Model { .. } => preamble.push(line),
             Line::Host(span) => {
                 let result = Host::parse(&line, span.clone()).map(|parsed| {
                     Rc::new(HostSlot {
@@ -182,6 +181,9 @@ pub(super) fn load(
                 });
                 added += 1;
             }
+            // Blank lines, comments, model lines and lines this build does not
+            // know are kept as they are.
+            _ => preamble.push(line),
         }
     }
     session.trailer.append(&mut preamble);

@@ -1,9 +1,10 @@
+use super::analysis::logical_lines;
 use super::args::{closest_command, edit_distance};
 use super::*;
-use crate::host::Host;
-use crate::notation::Reaction;
-use crate::notation::parse_reaction;
-use crate::report::Palette;
+use lacuna::host::Host;
+use lacuna::notation::Reaction;
+use lacuna::notation::parse_reaction;
+use lacuna::report::Palette;
 
 fn run(session: &mut Session, input: &str) -> String {
     let mut out = Vec::new();
@@ -337,7 +338,7 @@ fn the_document_lists_every_command_and_code() {
             );
         }
     }
-    for code in crate::base::diagnostic::Code::ALL {
+    for code in lacuna::base::diagnostic::Code::ALL {
         if code.as_str().starts_with('T') {
             assert!(
                 doc.contains(&format!("| {} |", code.as_str())),
