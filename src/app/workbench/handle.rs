@@ -54,14 +54,14 @@ impl Session {
                 self.command(&spec_line, number, out)
             }
             Line::Model { keyword, .. } => {
-                // integration point: model lines (K, dH, dS, ...) belong to the
-                // equilibrium model (src/law.rs); hand them over once it exists.
+                // Model lines (K, dH, dS, ...) typed at the prompt are not
+                // taken yet; those of a loaded file are kept and used.
                 let d = Diagnostic::new(
                     Code::WorkbenchCommand,
                     keyword,
-                    "model lines are not available in this build yet",
+                    "model lines are not taken at the prompt yet",
                 )
-                .with_help("type reactions and commands; model lines are kept when a file is loaded and saved");
+                .with_help("write them in a reaction file and `/load` it: its model lines are kept, used by /law and /brouwer, and saved");
                 self.problems += 1;
                 self.print_diagnostic(out, line, number, d)
             }
