@@ -60,6 +60,7 @@ pub trait Sink {
 
 /// Totals over everything checked.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Summary {
     pub sources: u64,
@@ -89,6 +90,7 @@ impl Summary {
 /// A reaction report that owns its data, for checking files on other threads
 /// and replaying the results in a stable order.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct OwnedReport {
     pub source: Arc<str>,
     pub line: u32,
