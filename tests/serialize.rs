@@ -35,6 +35,7 @@ fn exact_numbers_are_their_exact_text() {
         (Q::new(-6, 4), "-3/2"),
         (Q::from_integer(i64::MAX), "9223372036854775807"),
         (Q::new(1, i64::MAX), "1/9223372036854775807"),
+        (Q::from_integer(i64::MIN), "-9223372036854775808"),
     ] {
         assert_eq!(to_json(&q), Value::String(text.into()));
         assert_eq!(serde_json::to_string(&q).unwrap(), format!("\"{text}\""));

@@ -51,7 +51,8 @@ use std::fmt;
 /// With the `serde` feature a `Q` serializes as its exact text, the one
 /// [`to_plain`] writes: `"1/2"`, `"-3"`, `"0"`. It never becomes a
 /// floating-point number, so `1/3` keeps its value through JSON, and
-/// [`parse`] reads the text back to the same `Q`.
+/// [`parse`] reads the text back to the same `Q` (all but a numerator of
+/// exactly `i64::MIN`, whose magnitude the reader refuses as too large).
 #[derive(Clone, Copy)]
 pub struct Q(Ratio<i64>);
 
