@@ -403,6 +403,22 @@ fn a_scan_serializes_its_points_and_exact_regimes() {
     assert_eq!(regimes[1]["laws"]["gas"], json!([["-1/2"], ["0"], ["0"]]));
     assert_eq!(regimes[0]["from"], 1e-20);
     assert_eq!(regimes[1]["to"], 1.0);
+
+    // A scan that cannot run says why, as data: this model fixes no total.
+    let refused = lacuna::scan(
+        &model,
+        &ScanOptions::new(lacuna::solve::scan::Along::Dopant {
+            total: 0,
+            from: 1e-4,
+            to: 1e-2,
+            po2: 1e-5,
+        }),
+    )
+    .unwrap_err();
+    assert_eq!(
+        to_json(&refused),
+        json!({"NoSuchTotal": {"index": 0, "totals": 0}})
+    );
 }
 
 #[test]

@@ -158,6 +158,7 @@ impl Scan {
 
 /// Why a scan was not run.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum ScanError {
     /// More points than `MAX_POINTS` were asked for.

@@ -11,6 +11,7 @@ use std::sync::Arc;
 
 /// Everything known about one reaction line after checking it.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct ReactionReport<'a> {
     /// The source's name: a path, `<stdin>` or `<inline>`.
@@ -105,6 +106,7 @@ pub struct OwnedReport {
 
 /// What a `Recording` captured, in order.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Event {
     Reaction(Box<OwnedReport>),
