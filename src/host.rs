@@ -16,6 +16,7 @@ use std::fmt::Write;
 
 /// One sublattice of regular sites.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Sublattice {
     pub element: u8,
@@ -40,6 +41,7 @@ impl Sublattice {
 
 /// A host crystal.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Host {
     /// The formula as written.

@@ -21,8 +21,10 @@
 //!
 //! Problems come back as [`Diagnostic`]s: located (line, column, byte
 //! span), coded, with a way forward; a `Diagnostic` is a
-//! `std::error::Error`. With the `serde` feature every result the
-//! commands print as JSON serializes to the same shape.
+//! `std::error::Error`. With the `serde` feature every result type above
+//! derives `serde::Serialize` (exact numbers as their exact text, `"1/2"`,
+//! never floats); the commands' JSON is a contract of its own, written
+//! from these results by `report::results`.
 //!
 //! ```
 //! // Check a reaction against a host, then write its law.
@@ -95,6 +97,7 @@ pub fn host(spec: &str) -> Result<Host, Diagnostics> {
 
 /// Several diagnostics as one error.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Diagnostics(pub Vec<Diagnostic>);
 
 impl std::fmt::Display for Diagnostics {
@@ -126,6 +129,7 @@ pub fn parse_reaction(text: &str) -> Result<Reaction, Diagnostics> {
 /// What checking a source found: one report per reaction line and the
 /// problems of other lines, in line order.
 #[derive(Debug, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Checked {
     pub reactions: Vec<OwnedReport>,

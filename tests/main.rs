@@ -24,5 +24,7 @@ mod pipes;
 mod properties;
 mod reader_fixtures;
 mod repl;
+#[cfg(feature = "serde")]
+mod serialize;
 mod support;
 mod typeset;

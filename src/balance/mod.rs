@@ -31,6 +31,7 @@ use num_integer::Integer;
 
 /// Which side of the arrow a term is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub enum Side {
     Left,
     Right,
@@ -62,6 +63,7 @@ impl Side {
 
 /// How many balanced reactions the species allow.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Status {
     Unique,
@@ -94,6 +96,7 @@ pub struct Options {
 
 /// One input term's coefficient in a balanced reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct TermCoefficient {
     /// Position among the input's terms other than `nil`, left side first.
@@ -112,6 +115,7 @@ pub struct TermCoefficient {
 
 /// One balanced reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Balanced {
     /// Every input term other than `nil`, in input order.
@@ -125,6 +129,7 @@ pub struct Balanced {
 
 /// The balancer's answer.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Balancing {
     pub status: Status,

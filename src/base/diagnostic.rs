@@ -231,6 +231,7 @@ impl serde::Serialize for Code {
 
 /// A problem found in the user's text, with where it is and how to fix it.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Diagnostic {
     pub severity: Severity,

@@ -47,6 +47,12 @@ use std::fmt;
 /// assert_eq!(int(1).checked_add(int(2)), Ok(int(3)));
 /// assert_eq!(int(i64::MAX).checked_add(int(1)), Err(Overflow));
 /// ```
+///
+/// With the `serde` feature a `Q` serializes as its exact text, the one
+/// [`to_plain`] writes: `"1/2"`, `"-3"`, `"0"`. It never becomes a
+/// floating-point number, so `1/3` keeps its value through JSON, and
+/// [`parse`] reads the text back to the same `Q` (all but a numerator of
+/// exactly `i64::MIN`, whose magnitude the reader refuses as too large).
 #[derive(Clone, Copy)]
 pub struct Q(Ratio<i64>);
 
@@ -391,6 +397,14 @@ impl fmt::Debug for Q {
 impl fmt::Display for Q {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         fmt::Display::fmt(&self.0, f)
+    }
+}
+
+/// The exact text (`"1/2"`, `"-3"`), never a float: see [`Q`].
+#[cfg(feature = "serde")]
+impl serde::Serialize for Q {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(&to_plain(*self))
     }
 }
 

@@ -21,6 +21,7 @@ use crate::notation::{
 /// Which balances hold. `site` is `None` when it could not be evaluated
 /// (no host, or a site the host lacks).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Balance {
     pub mass: bool,
@@ -30,6 +31,7 @@ pub struct Balance {
 
 /// The numbers behind the balances, left and right.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct BalanceTable {
     /// (atomic number, left, right) in order of first appearance.
@@ -41,6 +43,7 @@ pub struct BalanceTable {
 
 /// The outcome of checking one reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Verdict {
     pub balance: Balance,

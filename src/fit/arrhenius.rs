@@ -157,10 +157,6 @@ pub struct Enthalpy {
     /// The term it comes from: `n`, `p` or `ion`.
     pub component: String,
     /// ΔH = factor × (E_a − E_μ); the factor is 1/e for a term ∝ K^e.
-    #[cfg_attr(
-        feature = "serde",
-        serde(serialize_with = "super::regimes::serialize_q")
-    )]
     pub factor: Q,
     pub value_ev: f64,
     pub se_ev: Option<f64>,

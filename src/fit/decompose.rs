@@ -17,20 +17,8 @@ use crate::base::number::Q;
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Exponents {
-    #[cfg_attr(
-        feature = "serde",
-        serde(serialize_with = "super::regimes::serialize_q")
-    )]
     pub ion: Q,
-    #[cfg_attr(
-        feature = "serde",
-        serde(serialize_with = "super::regimes::serialize_q")
-    )]
     pub n: Q,
-    #[cfg_attr(
-        feature = "serde",
-        serde(serialize_with = "super::regimes::serialize_q")
-    )]
     pub p: Q,
 }
 

@@ -130,6 +130,7 @@ impl Default for FitOptions {
 
 /// Why an analysis could not run.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub enum FitError {
     /// The data cannot be fitted (exit code 1 in the CLI).
     Data(String),

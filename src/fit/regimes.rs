@@ -7,8 +7,6 @@
 //! Out: `ModelRegimes`, and `SlopeMatch` for a measured slope with its
 //! standard error.
 
-#[cfg(feature = "serde")]
-use crate::base::number;
 use crate::base::number::Q;
 
 /// How one concentration goes in a regime: `c ∝ pO2^slope · Π K_j^e_j`
@@ -18,7 +16,6 @@ use crate::base::number::Q;
 #[non_exhaustive]
 pub struct CarrierLaw {
     /// Exact exponent of pO2.
-    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub slope: Q,
     /// Exponents of the equilibrium constants, by reaction name.
     #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q_pairs"))]
@@ -307,7 +304,6 @@ fn reaction(name: &str, equation: &str, law: &str) -> ReactionInfo {
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Candidate {
-    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub slope: Q,
     /// `carrier in regime` for each regime that predicts this slope; empty
     /// for a simple slope no regime predicts.
@@ -347,12 +343,10 @@ impl SlopeVerdict {
 #[non_exhaustive]
 pub struct SlopeMatch {
     /// The nearest candidate.
-    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q"))]
     pub nearest: Q,
     /// (slope − nearest) / SE, when the SE is known.
     pub z: Option<f64>,
     /// Every candidate inside the confidence interval.
-    #[cfg_attr(feature = "serde", serde(serialize_with = "serialize_q_list"))]
     pub within: Vec<Q>,
     pub verdict: SlopeVerdict,
     /// The regimes predicting the nearest candidate (or, for a match, the
@@ -404,19 +398,11 @@ pub fn match_slope(slope: f64, se: Option<f64>, crit: f64, candidates: &[Candida
     }
 }
 
-#[cfg(feature = "serde")]
-pub(crate) fn serialize_q<S: serde::Serializer>(v: &Q, s: S) -> Result<S::Ok, S::Error> {
-    s.serialize_str(&number::to_plain(*v))
-}
-
-#[cfg(feature = "serde")]
-fn serialize_q_list<S: serde::Serializer>(v: &[Q], s: S) -> Result<S::Ok, S::Error> {
-    s.collect_seq(v.iter().map(|q| number::to_plain(*q)))
-}
-
+/// The exponents as a JSON object keyed by reaction name (each `Q` as its
+/// exact text).
 #[cfg(feature = "serde")]
 fn serialize_q_pairs<S: serde::Serializer>(v: &[(String, Q)], s: S) -> Result<S::Ok, S::Error> {
-    s.collect_map(v.iter().map(|(k, q)| (k, number::to_plain(*q))))
+    s.collect_map(v.iter().map(|(k, q)| (k, q)))
 }
 
 #[cfg(test)]

@@ -17,6 +17,7 @@ use crate::notation::{Arrow, Entity, Formula, Phase, Reaction};
 
 /// A family of intrinsic defect reactions.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Family {
     Schottky,
@@ -43,6 +44,7 @@ pub enum Family {
 
 /// One generated reaction.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct NativeReaction {
     pub family: Family,
@@ -54,6 +56,7 @@ pub struct NativeReaction {
 
 /// The catalogue of a host, with the sublattices that had to be left out.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Catalogue {
     pub reactions: Vec<NativeReaction>,

@@ -19,6 +19,7 @@ use std::fmt::Write;
 
 /// What a factor of a mass-action law stands for.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum FactorKind {
     /// A point defect or an associate: a concentration `[X]`.
@@ -59,6 +60,7 @@ impl FactorKind {
 
 /// One factor of a mass-action law.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Factor {
     /// Identity of the species, independent of spelling (for collecting).
@@ -82,6 +84,7 @@ pub struct Factor {
 
 /// The mass-action law of one reaction.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Law {
     pub label: Option<String>,

@@ -15,6 +15,7 @@ use crate::notation::{Entity, Style};
 
 /// The law of one reaction of a document, with its data.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct LawEntry {
     /// The document's source name.
@@ -30,6 +31,7 @@ pub struct LawEntry {
 
 /// What became of one reaction of a document.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct ReactionLaw {
     /// The reaction's line (1-based).
@@ -43,6 +45,7 @@ pub struct ReactionLaw {
 
 /// The laws of a document.
 #[derive(Debug, Clone, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct DocumentLaws {
     /// One per reaction that read as a reaction, in line order.

@@ -38,6 +38,7 @@ pub const DEFAULT_PO2_RANGE: (f64, f64) = (1e-30, 1e5);
 
 /// A species whose concentration the model solves for.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct ModelSpecies {
     pub key: String,
@@ -59,6 +60,7 @@ pub struct ModelSpecies {
 
 /// An equilibrium with data.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Equilibrium {
     pub label: String,
@@ -76,6 +78,7 @@ pub struct Equilibrium {
 
 /// A gas in the model: O2 is swept, the others have fixed pressures.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Gas {
     pub key: String,
@@ -88,6 +91,7 @@ pub struct Gas {
 
 /// A fixed total (a dopant level).
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Total {
     pub subject_unicode: String,
@@ -104,6 +108,7 @@ pub struct Total {
 
 /// A model ready to solve.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Model {
     pub source: String,

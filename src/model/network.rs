@@ -25,6 +25,7 @@ use num_traits::Zero;
 
 /// One equilibrium as exact stoichiometric numbers (products positive).
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Row {
     /// (species index, exponent)
     pub species: Vec<(usize, Q)>,
@@ -34,6 +35,7 @@ pub struct Row {
 
 /// What kind of constraint a level of the network is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Constraint {
     /// Σ z_s c_s = 0.
@@ -44,6 +46,7 @@ pub enum Constraint {
 
 /// The solved log-linear structure.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Network {
     pub species: usize,
     pub equilibria: usize,

@@ -18,6 +18,7 @@ use std::sync::Arc;
 
 /// A reaction line of the file.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct ReactionLine {
     pub label: Option<String>,
@@ -32,6 +33,7 @@ pub struct ReactionLine {
 
 /// A `K`, `dH` or `dS` line.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Datum {
     /// K, and the temperature it holds at (`None`: the model temperature).
@@ -45,6 +47,7 @@ pub enum Datum {
 
 /// One line of thermodynamic data.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct DataLine {
     pub label: String,
@@ -56,6 +59,7 @@ pub struct DataLine {
 
 /// How a fixed amount is expressed.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Basis {
     /// Fraction of the sites of the subject's sublattice.
@@ -70,6 +74,7 @@ pub enum Basis {
 
 /// A `fix` line.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct FixLine {
     pub subject: Species,
@@ -82,6 +87,7 @@ pub struct FixLine {
 
 /// A `pressure` line.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct PressureLine {
     /// Gas identity as the law module keys it (`gas H2O`).
@@ -94,6 +100,7 @@ pub struct PressureLine {
 
 /// Everything read from a reaction file, before it is assembled into a model.
 #[derive(Debug, Clone, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Document {
     pub source: String,

@@ -19,6 +19,7 @@ pub const ZERO_CELSIUS: f64 = 273.15;
 
 /// How the equilibrium constant of one reaction is known.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Thermo {
     /// K at one temperature (kelvin) only.

@@ -28,6 +28,7 @@ pub type Span = Range<usize>;
 
 /// What sits on a site: atoms, nothing, or a free charge carrier.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Occupant {
     /// An element or a group such as `OH`. `escaped` is set for `el:V`, the
@@ -43,6 +44,7 @@ pub enum Occupant {
 
 /// How a vacancy was written; only a bare `V` can clash with vanadium.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum VacancySpelling {
     /// `V`
@@ -55,6 +57,7 @@ pub enum VacancySpelling {
 
 /// Atoms with exact counts, in the order written (`La0.9Sr0.1MnO3`).
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Formula {
     /// (atomic number, count); an element may appear more than once as written.
     pub atoms: Vec<(u8, Q)>,
@@ -82,6 +85,7 @@ impl Formula {
 
 /// The site subscript of a species.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Site {
     /// A regular site, named by the element that occupies it in the perfect
@@ -96,6 +100,7 @@ pub enum Site {
 
 /// Which family of charge marks a species was written with (for style rules).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum MarkStyle {
     /// No mark at all: neutral by convention.
@@ -112,6 +117,7 @@ pub enum MarkStyle {
 
 /// A point defect, a regular lattice species or a free carrier.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Species {
     pub occupant: Occupant,
     pub site: Option<Site>,
@@ -124,6 +130,7 @@ pub struct Species {
 /// A species without its span and spelling: what it *is*, for comparing,
 /// hashing and collecting.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct SpeciesKey {
     pub occupant: Occupant,
     pub site: Option<Site>,
@@ -161,6 +168,7 @@ impl Species {
 /// A cluster of defects written in parentheses or braces, with an optional
 /// net charge.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Associate {
     pub parts: Vec<Term>,
     /// The declared net charge; `None` when no mark was written.
@@ -195,6 +203,7 @@ impl Associate {
 
 /// Physical state tag of a compound.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Phase {
     Gas,
@@ -204,6 +213,7 @@ pub enum Phase {
 
 /// A compound or gas outside the host lattice: `Y2O3`, `O2(g)`, `H2O(g)`.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Compound {
     pub formula: Formula,
     pub phase: Option<Phase>,
@@ -212,6 +222,7 @@ pub struct Compound {
 
 /// What a term stands for.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Entity {
     Species(Species),
@@ -223,6 +234,7 @@ pub enum Entity {
 
 /// A coefficient and what it multiplies.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Term {
     pub coefficient: Q,
     /// Whether the user wrote the coefficient (the balancer keeps those fixed).
@@ -233,6 +245,7 @@ pub struct Term {
 
 /// How the two sides are joined.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Arrow {
     /// `->`, `→`
@@ -245,6 +258,7 @@ pub enum Arrow {
 
 /// A defect reaction: reactants, arrow, products.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Reaction {
     pub left: Vec<Term>,
     pub right: Vec<Term>,

@@ -23,6 +23,7 @@ use std::collections::BTreeMap;
 
 /// Which terms dominate in a regime.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Dominance {
     /// Species indices; `None` when the model has no charged species.
@@ -34,6 +35,7 @@ pub struct Dominance {
 
 /// Every species as an exact power law inside one regime.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct PowerLaws {
     /// `k[s][r]` = d ln c_s / d ln K_r
@@ -48,6 +50,7 @@ pub struct PowerLaws {
 
 /// One regime with the range where it holds.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Regime {
     pub dominance: Dominance,

@@ -90,6 +90,7 @@ impl ScanOptions {
 
 /// What was computed, with the conditions that held.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Mode {
     Po2 {
@@ -131,6 +132,7 @@ impl Mode {
 
 /// The result of a scan.
 #[derive(Debug, Clone)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Scan {
     pub mode: Mode,
@@ -156,6 +158,7 @@ impl Scan {
 
 /// Why a scan was not run.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum ScanError {
     /// More points than `MAX_POINTS` were asked for.

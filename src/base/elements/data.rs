@@ -2,6 +2,7 @@
 
 /// One Shannon effective ionic radius.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct IonicRadius {
     /// Charge (oxidation state) of the ion.
     pub charge: i8,
@@ -16,6 +17,7 @@ pub struct IonicRadius {
 
 /// Spin state of a transition-metal ion in Shannon's table.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub enum Spin {
     /// No spin state given.
     None,
@@ -27,6 +29,7 @@ pub enum Spin {
 
 /// One chemical element.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Element {
     /// Atomic number.
     pub z: u8,

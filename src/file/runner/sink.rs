@@ -11,6 +11,7 @@ use std::sync::Arc;
 
 /// Everything known about one reaction line after checking it.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct ReactionReport<'a> {
     /// The source's name: a path, `<stdin>` or `<inline>`.
@@ -60,6 +61,7 @@ pub trait Sink {
 
 /// Totals over everything checked.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Summary {
     pub sources: u64,
@@ -89,6 +91,7 @@ impl Summary {
 /// A reaction report that owns its data, for checking files on other threads
 /// and replaying the results in a stable order.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct OwnedReport {
     pub source: Arc<str>,
     pub line: u32,
@@ -103,6 +106,7 @@ pub struct OwnedReport {
 
 /// What a `Recording` captured, in order.
 #[derive(Debug)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Event {
     Reaction(Box<OwnedReport>),

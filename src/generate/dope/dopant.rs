@@ -14,6 +14,7 @@ use crate::notation::{Formula, parse_formula};
 
 /// A dopant cation and its source compound.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 pub struct Dopant {
     pub element: u8,
     /// Oxidation state (real charge), positive.

@@ -144,6 +144,7 @@ impl Ratio {
 
 /// One defect's amount at the level.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct DefectFraction {
     /// `V_O••` (Unicode).
@@ -155,6 +156,7 @@ pub struct DefectFraction {
 
 /// The doped crystal at one level, per formula unit of sites.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Composition {
     /// Mole fraction of the dopant compound, m.

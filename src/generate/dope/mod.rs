@@ -35,6 +35,7 @@ use structure::radius;
 
 /// Where the dopant goes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum DopantSite {
     /// The cation sublattice with this index.
@@ -44,6 +45,7 @@ pub enum DopantSite {
 
 /// What compensates the dopant's effective charge.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Compensation {
     /// Isovalent: nothing to compensate.
@@ -109,6 +111,7 @@ impl Compensation {
 
 /// Gas exchange a mechanism needs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum Gas {
     None,
@@ -118,6 +121,7 @@ pub enum Gas {
 
 /// Dopant and host radius at one site.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct SizeMatch {
     pub dopant: Radius,
@@ -128,6 +132,7 @@ pub struct SizeMatch {
 
 /// One balanced incorporation mechanism.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Mechanism {
     /// 1 is the best guess.
@@ -166,6 +171,7 @@ pub struct DopeOptions {
 
 /// Everything `dope` found.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Report {
     pub structure: Structure,

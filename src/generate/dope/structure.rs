@@ -14,6 +14,7 @@ use crate::host::{Host, SiteLookup};
 
 /// Where a coordination number came from.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub enum CnSource {
     /// Inferred from the structure type named.
@@ -36,6 +37,7 @@ impl CnSource {
 
 /// The coordination of one cation sublattice.
 #[derive(Debug, Clone, PartialEq, Eq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct SiteCn {
     pub sublattice: usize,
@@ -45,6 +47,7 @@ pub struct SiteCn {
 
 /// The structure-type guess for a host.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Structure {
     /// `fluorite`, `perovskite`, …, or `unrecognised`.
@@ -86,6 +89,7 @@ impl Structure {
 
 /// A Shannon radius, with the coordination number it was taken at.
 #[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Radius {
     pub pm: f64,

@@ -9,6 +9,7 @@ use crate::model::network::{Constraint, Network};
 
 /// One solved state.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[non_exhaustive]
 pub struct Point {
     /// bar
