@@ -2,9 +2,9 @@
 //!
 //! # The library in one page
 //!
-//! The entry points below do what the `lacuna` commands do; the commands
-//! and the workbench call them, so a program using the library gets the
-//! same answers:
+//! The entry points below do what the `lacuna` commands do. The commands
+//! and the workbench call them or the same stage functions they wrap (never
+//! a copy), so a program using the library gets the same answers:
 //!
 //! | job | entry point | result |
 //! |---|---|---|
