@@ -211,22 +211,44 @@ impl Q {
 
     /// `self + rhs`, or `Overflow`.
     pub fn checked_add(self, rhs: Q) -> Result<Q, Overflow> {
-        let (a, b) = self.wide();
-        let (c, d) = rhs.wide();
-        if b == 1 && d == 1 {
-            return self
-                .numer()
-                .checked_add(*rhs.numer())
+        self.cross(rhs, i64::checked_add, i128::checked_add)
+    }
+
+    /// `self - rhs`, or `Overflow`.
+    pub fn checked_sub(self, rhs: Q) -> Result<Q, Overflow> {
+        self.cross(rhs, i64::checked_sub, i128::checked_sub)
+    }
+
+    /// `op` on two integers in `i64`, when both are integers: the common
+    /// case, with no gcd work.
+    fn integers(self, rhs: Q, op: fn(i64, i64) -> Option<i64>) -> Option<Result<Q, Overflow>> {
+        (self.is_integer() && rhs.is_integer()).then(|| {
+            op(*self.numer(), *rhs.numer())
                 .map(Q::from_integer)
-                .ok_or(Overflow);
+                .ok_or(Overflow)
+        })
+    }
+
+    /// `a/b ∘ c/d = (a·d ∘ c·b) / (b·d)` for `∘` = + or −: in `i64` when
+    /// every step fits, else in `i128`, where |a·d|, |c·b| < 2^126 so
+    /// neither the products nor their sum or difference overflow.
+    fn cross(
+        self,
+        rhs: Q,
+        narrow: fn(i64, i64) -> Option<i64>,
+        wide: fn(i128, i128) -> Option<i128>,
+    ) -> Result<Q, Overflow> {
+        if let Some(result) = self.integers(rhs, narrow) {
+            return result;
         }
-        if let Some((n, den)) = self.narrow_cross(rhs, i64::checked_add) {
+        if let Some((n, den)) = self.narrow_cross(rhs, narrow) {
             return reduce_i128(n.into(), den.into());
         }
-        // |a d|, |c b| < 2^126, so neither the products nor the sum overflow i128.
+        let (a, b) = self.wide();
+        let (c, d) = rhs.wide();
         let n = a
             .checked_mul(d)
-            .and_then(|x| c.checked_mul(b).and_then(|y| x.checked_add(y)));
+            .and_then(|x| c.checked_mul(b).and_then(|y| wide(x, y)));
         reduce_i128(n.ok_or(Overflow)?, b.checked_mul(d).ok_or(Overflow)?)
     }
 
@@ -238,37 +260,13 @@ impl Q {
         Some((n, b.checked_mul(d)?))
     }
 
-    /// `self - rhs`, or `Overflow`.
-    pub fn checked_sub(self, rhs: Q) -> Result<Q, Overflow> {
-        if self.is_integer() && rhs.is_integer() {
-            return self
-                .numer()
-                .checked_sub(*rhs.numer())
-                .map(Q::from_integer)
-                .ok_or(Overflow);
-        }
-        if let Some((n, den)) = self.narrow_cross(rhs, i64::checked_sub) {
-            return reduce_i128(n.into(), den.into());
-        }
-        let (a, b) = self.wide();
-        let (c, d) = rhs.wide();
-        let n = a
-            .checked_mul(d)
-            .and_then(|x| c.checked_mul(b).and_then(|y| x.checked_sub(y)));
-        reduce_i128(n.ok_or(Overflow)?, b.checked_mul(d).ok_or(Overflow)?)
-    }
-
     /// `self * rhs`, or `Overflow`.
     pub fn checked_mul(self, rhs: Q) -> Result<Q, Overflow> {
+        if let Some(result) = self.integers(rhs, i64::checked_mul) {
+            return result;
+        }
         let (a, b) = self.wide();
         let (c, d) = rhs.wide();
-        if b == 1 && d == 1 {
-            return self
-                .numer()
-                .checked_mul(*rhs.numer())
-                .map(Q::from_integer)
-                .ok_or(Overflow);
-        }
         reduce_i128(
             a.checked_mul(c).ok_or(Overflow)?,
             b.checked_mul(d).ok_or(Overflow)?,

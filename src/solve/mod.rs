@@ -4,3 +4,6 @@
 pub mod equilibrium;
 pub mod regimes;
 pub mod scan;
+
+#[cfg(test)]
+mod test_support;

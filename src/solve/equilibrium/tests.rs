@@ -1,25 +1,11 @@
 //! The numerical solver against closed forms and published numbers.
 
 use super::*;
-use crate::model::Model;
 use crate::model::thermo::BOLTZMANN_EV_PER_K;
-use crate::model::{Overrides, read};
 use crate::notation::Style;
 use crate::solve::regimes::{self, Sweep};
 
-fn model(text: &str) -> Model {
-    let doc = read("<test>", text, None);
-    match Model::build(&doc, Overrides::default()) {
-        Ok(m) => m,
-        Err(e) => panic!("model did not build: {e:#?}"),
-    }
-}
-
-fn index(m: &Model, symbol: &str) -> usize {
-    (0..m.species.len())
-        .find(|&s| m.symbol(s, Style::Unicode) == symbol)
-        .unwrap_or_else(|| panic!("no species {symbol}"))
-}
+use crate::solve::test_support::{index, model};
 
 fn relative(a: f64, b: f64) -> f64 {
     (a / b - 1.0).abs()

@@ -9,21 +9,9 @@
 //! is re-derived by hand in the comment beside its check.
 
 use super::*;
-use crate::model::{Model, Overrides, read};
+use crate::model::Model;
 
-fn model(text: &str) -> Model {
-    let doc = read("<test>", text, None);
-    match Model::build(&doc, Overrides::default()) {
-        Ok(m) => m,
-        Err(e) => panic!("model did not build: {e:#?}"),
-    }
-}
-
-fn index(m: &Model, symbol: &str) -> usize {
-    (0..m.species.len())
-        .find(|&s| m.symbol(s, Style::Unicode) == symbol)
-        .unwrap_or_else(|| panic!("no species {symbol}"))
-}
+use crate::solve::test_support::{index, model};
 
 fn slope(m: &Model, regime: &Regime, symbol: &str) -> String {
     number::to_plain(regime.slope(m, index(m, symbol)))
